@@ -1,0 +1,168 @@
+"""What a design costs: gates, gate inputs and flip-flops, and one number to rank designs by.
+
+The structural rules are those the netlist builder follows, so the cost of a set of covers
+equals the cost counted on the netlist built from them:
+
+* a product term of two or more literals is one AND gate, built once however many
+  functions use it; a one-literal term is a wire;
+* a function of two or more terms is one OR gate (two functions with the same terms share
+  it); one term is a wire; a constant is a tie to 0 or 1;
+* each variable used complemented anywhere gets one inverter.
+
+The ranking number is the gate-input count (every gate input, inverters included, weighs 1)
+plus a weight per flip-flop.  Gate-input count is the usual measure of two-level cost
+(Mano, M. M. and Kime, C. R., *Logic and Computer Design Fundamentals*, 4th ed., 2008,
+section 2.5, "gate-input cost", from memory).  The flip-flop weights are illustrative:
+replace them with figures from your cell library.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Iterable, Mapping, Sequence
+from dataclasses import dataclass, field
+from types import MappingProxyType
+
+from fsmsynth.logic.cube import Cube
+
+GATE_KINDS = ("not", "and", "or")
+
+
+@dataclass(frozen=True, slots=True)
+class CostWeights:
+    """Weights of the ranking number ``Cost.total``.
+
+    Attributes
+    ----------
+    gate:
+        Weight of each gate, by kind (``not``, ``and``, ``or``).
+    gate_input:
+        Weight of each gate input.
+    flip_flop:
+        Weight of each flip-flop, by storage kind name; kinds not listed use
+        ``default_flip_flop``.
+    """
+
+    gate: Mapping[str, float] = field(
+        default_factory=lambda: MappingProxyType({"not": 0.0, "and": 0.0, "or": 0.0}))
+    gate_input: float = 1.0
+    flip_flop: Mapping[str, float] = field(default_factory=lambda: MappingProxyType({}))
+    default_flip_flop: float = 6.0
+
+    def flip_flop_weight(self, kind: str) -> float:
+        """Weight of one flip-flop of ``kind``."""
+        return float(self.flip_flop.get(kind, self.default_flip_flop))
+
+
+DEFAULT_WEIGHTS = CostWeights()
+
+
+@dataclass(frozen=True, slots=True)
+class Cost:
+    """Cost summary of a design.
+
+    Attributes
+    ----------
+    product_terms:
+        Distinct product terms with at least one literal (shared terms counted once).
+    literals:
+        Literals in those terms.
+    gates:
+        Gate count by kind (``not``, ``and``, ``or``).
+    gate_inputs:
+        Inputs of all those gates.
+    flip_flops:
+        Flip-flop count by storage kind.
+    total:
+        The ranking number (see the module docstring).
+    """
+
+    product_terms: int
+    literals: int
+    gates: Mapping[str, int]
+    gate_inputs: int
+    flip_flops: Mapping[str, int]
+    total: float
+
+    def as_dict(self) -> dict[str, object]:
+        """Plain data for JSON."""
+        return {
+            "product_terms": self.product_terms,
+            "literals": self.literals,
+            "gates": dict(self.gates),
+            "gate_inputs": self.gate_inputs,
+            "flip_flops": dict(self.flip_flops),
+            "total": self.total,
+        }
+
+
+@dataclass(frozen=True, slots=True)
+class LogicShape:
+    """The gates a set of covers needs, before any weighting."""
+
+    products: tuple[Cube, ...]
+    inverted: tuple[int, ...]
+    or_inputs: tuple[tuple[Cube, ...], ...]
+
+    @property
+    def gate_counts(self) -> dict[str, int]:
+        """Gates by kind."""
+        return {
+            "not": len(self.inverted),
+            "and": sum(1 for p in self.products if p.literal_count >= 2),
+            "or": len(self.or_inputs),
+        }
+
+    @property
+    def gate_inputs(self) -> int:
+        """Inputs of every gate, inverters included."""
+        return (len(self.inverted)
+                + sum(p.literal_count for p in self.products if p.literal_count >= 2)
+                + sum(len(o) for o in self.or_inputs))
+
+
+def normal_terms(terms: Iterable[Cube]) -> tuple[Cube, ...]:
+    """A function's terms as the netlist builds them: sorted, no repeats; ``()`` is 0 and a
+    lone universe cube is 1."""
+    unique = sorted(set(terms))
+    if any(t.care == 0 for t in unique):
+        return (Cube.universe(),)
+    return tuple(unique)
+
+
+def logic_shape(covers: Sequence[Sequence[Cube]]) -> LogicShape:
+    """The gates needed to build these covers under the rules of the module docstring."""
+    products: dict[Cube, None] = {}
+    inverted: set[int] = set()
+    ors: dict[tuple[Cube, ...], None] = {}
+    for terms in map(normal_terms, covers):
+        if terms == (Cube.universe(),):
+            continue
+        for t in terms:
+            products.setdefault(t)
+            inverted.update(v for v, positive in t.literals() if not positive)
+        if len(terms) >= 2:
+            ors.setdefault(terms)
+    return LogicShape(products=tuple(products), inverted=tuple(sorted(inverted)),
+                      or_inputs=tuple(ors))
+
+
+def weigh(gates: Mapping[str, int], gate_inputs: int, weights: CostWeights) -> float:
+    """The logic part of the ranking number."""
+    return (sum(weights.gate.get(k, 0.0) * n for k, n in gates.items())
+            + weights.gate_input * gate_inputs)
+
+
+def cost_of(shape: LogicShape, flip_flops: Mapping[str, int],
+            weights: CostWeights = DEFAULT_WEIGHTS) -> Cost:
+    """The full cost of logic of this shape plus these flip-flops."""
+    gates = shape.gate_counts
+    total = weigh(gates, shape.gate_inputs, weights) + sum(
+        weights.flip_flop_weight(kind) * n for kind, n in flip_flops.items())
+    return Cost(
+        product_terms=sum(1 for p in shape.products if p.literal_count >= 1),
+        literals=sum(p.literal_count for p in shape.products),
+        gates=MappingProxyType(gates),
+        gate_inputs=shape.gate_inputs,
+        flip_flops=MappingProxyType(dict(sorted(flip_flops.items()))),
+        total=total,
+    )
