@@ -1,0 +1,125 @@
+"""Excitation: from a state table, an encoding and storage kinds to Boolean functions.
+
+The functions are over the state variables ``Q0 .. Q<k-1>`` (variables ``0 .. k-1``) and the
+inputs in declared order (variables ``k ..``).  Each function is incompletely specified: an
+on-set and an off-set of cubes; every other point (unused codes, input combinations no row
+lists, don't-care next states or outputs, don't-care pins of the excitation table) is free.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+from dataclasses import dataclass
+
+from fsmsynth.encode import Encoding
+from fsmsynth.errors import OptionError
+from fsmsynth.logic.cube import Cube
+from fsmsynth.storage import Storage
+from fsmsynth.table import StateTable
+
+
+@dataclass(frozen=True, slots=True)
+class Function:
+    """One incompletely specified single-output function: where it must be 1 and where 0."""
+
+    name: str
+    on: tuple[Cube, ...]
+    off: tuple[Cube, ...]
+
+
+@dataclass(frozen=True, slots=True)
+class LogicFunctions:
+    """The functions a machine needs, over shared variables.
+
+    Attributes
+    ----------
+    variables:
+        Variable names, variable 0 first: ``Q0 .. Q<k-1>`` then the inputs.
+    functions:
+        Flip-flop data inputs (bit 0 first, pins in storage order), then the outputs.
+    exclusive:
+        Pairs of function names that must never be 1 at the same point (``S0``/``R0``).
+    """
+
+    variables: tuple[str, ...]
+    functions: tuple[Function, ...]
+    exclusive: tuple[tuple[str, str], ...] = ()
+
+    def function(self, name: str) -> Function:
+        """The function called ``name``."""
+        for f in self.functions:
+            if f.name == name:
+                return f
+        raise KeyError(name)
+
+
+def pin_signal(storage: Storage, pin: str, bit: int) -> str:
+    """Equation name of a flip-flop pin: pin name then state bit (``J2``)."""
+    assert pin in storage.pins
+    return f"{pin}{bit}"
+
+
+def excite(table: StateTable, encoding: Encoding,
+           storages: Storage | Sequence[Storage], unused: str = "dont-care") -> LogicFunctions:
+    """The next-state and output functions of ``table`` under ``encoding``.
+
+    Parameters
+    ----------
+    table, encoding:
+        The machine and its state codes.
+    storages:
+        One storage kind for every state bit, or a sequence with one per bit (bit 0 first).
+    unused:
+        ``"dont-care"``: codes no state has are free.  ``"safe"``: from every unused code the
+        machine goes to the reset state's code on the next clock, whatever the inputs.
+
+    Each row contributes, per state bit, the excitation-table entry for the bit's present and
+    next value (an on-cube where the pin must be 1, an off-cube where it must be 0), and per
+    output its specified value.  Cost: O(rows x (state bits x pins + outputs)).
+    """
+    k = encoding.width
+    per_bit = (tuple(storages) if isinstance(storages, Sequence) else (storages,) * k)
+    assert len(per_bit) == k
+    names = [pin_signal(s, p, b) for b, s in enumerate(per_bit) for p in s.pins]
+    on: dict[str, list[Cube]] = {n: [] for n in [*names, *table.outputs]}
+    off: dict[str, list[Cube]] = {n: [] for n in on}
+
+    def add_transition(space: Cube, code: int, next_code: int) -> None:
+        for b, storage in enumerate(per_bit):
+            pins = storage.pin_values(code >> b & 1, next_code >> b & 1)
+            for pin, v in zip(storage.pins, pins):
+                if v != "-":
+                    (on if v == "1" else off)[pin_signal(storage, pin, b)].append(space)
+
+    def add_outputs(space: Cube, cube: str) -> None:
+        for name, v in zip(table.outputs, cube):
+            if v != "-":
+                (on if v == "1" else off)[name].append(space)
+
+    for state, inputs, nxt, outs in table.rows:
+        code = encoding.codes[state]
+        space = Cube.minterm(code, k).intersection(Cube.from_string(inputs).shifted(k))
+        assert space is not None
+        if nxt is not None:
+            add_transition(space, code, encoding.codes[nxt])
+        if outs is not None:
+            add_outputs(space, outs)
+    if table.kind == "moore":
+        for state in table.states:
+            add_outputs(Cube.minterm(encoding.codes[state], k), table.output_cube_of(state))
+    if unused == "safe":
+        reset_code = encoding.codes[table.reset]
+        for code in encoding.unused_codes():
+            add_transition(Cube.minterm(code, k), code, reset_code)
+    elif unused != "dont-care":
+        raise OptionError(f"unused codes {unused!r}: use 'dont-care' or 'safe'")
+
+    exclusive = tuple((pin_signal(s, a, b), pin_signal(s, c, b))
+                      for b, s in enumerate(per_bit) for a, c in s.exclusive)
+    variables = tuple(f"Q{b}" for b in range(k)) + table.inputs
+    return LogicFunctions(
+        variables=variables,
+        functions=tuple(Function(name=n, on=tuple(sorted(set(on[n]))),
+                                 off=tuple(sorted(set(off[n])))) for n in on),
+        exclusive=exclusive,
+    )

@@ -1,0 +1,78 @@
+"""Heuristic two-level minimization through the Espresso engine that pyeda bundles.
+
+References
+----------
+Brayton, R. K., Hachtel, G. D., McMullen, C. T. and Sangiovanni-Vincentelli, A. L.,
+*Logic Minimization Algorithms for VLSI Synthesis*, Kluwer, 1984 (the Espresso heuristic).
+"""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+
+from pyeda.boolalg.espresso import FTYPE, RTYPE, espresso, set_config
+
+from fsmsynth.logic.cube import Cube
+
+# pyeda's positional cube notation: 1 = complemented literal, 2 = positive, 3 = absent.
+_ZERO, _ONE, _FREE = 1, 2, 3
+# Output part with an on-set and off-set given (type fr): 1 on, 0 off, 2 neither.
+_OUT_OFF, _OUT_ON, _OUT_FREE = 0, 1, 2
+
+_CONFIG = dict(single_expand=False, remove_essential=True, force_irredundant=True,
+               unwrap_onset=True, recompute_onset=False, use_super_gasp=False)
+
+
+def _to_positional(cube: Cube, n: int) -> tuple[int, ...]:
+    return tuple(_FREE if not cube.care >> i & 1 else (_ONE if cube.value >> i & 1 else _ZERO)
+                 for i in range(n))
+
+
+def _from_positional(vec: Sequence[int]) -> Cube:
+    care = value = 0
+    for i, v in enumerate(vec):
+        if v != _FREE:
+            care |= 1 << i
+            value |= (1 << i) if v == _ONE else 0
+    return Cube(care=care, value=value)
+
+
+def espresso_cover(n_vars: int, on_sets: Sequence[Sequence[Cube]],
+                   off_sets: Sequence[Sequence[Cube]]) -> list[tuple[Cube, ...]]:
+    """Minimize several functions together, sharing product terms between them.
+
+    Parameters
+    ----------
+    n_vars:
+        Number of variables (at least 1).
+    on_sets, off_sets:
+        For each function, the cubes where it must be 1 and where it must be 0; every other
+        point is a don't care.  On- and off-set of one function must not intersect.
+
+    Returns
+    -------
+    list of tuple of Cube
+        For each function, the product terms of its sum of products, sorted.  A term may
+        appear in several functions: that is a shared product.
+    """
+    assert n_vars >= 1 and len(on_sets) == len(off_sets)
+    m = len(on_sets)
+    if not any(on_sets):
+        return [() for _ in range(m)]
+    rows: dict[tuple[int, ...], list[int]] = {}
+    for f, (on, off) in enumerate(zip(on_sets, off_sets)):
+        for cubes, mark in ((on, _OUT_ON), (off, _OUT_OFF)):
+            for cube in cubes:
+                vec = rows.setdefault(_to_positional(cube, n_vars), [_OUT_FREE] * m)
+                assert vec[f] in (_OUT_FREE, mark), "on-set and off-set intersect"
+                vec[f] = mark
+    cover = {(key, tuple(out)) for key, out in rows.items()}
+    set_config(**_CONFIG)
+    result = espresso(n_vars, m, cover, intype=FTYPE | RTYPE)
+    terms: list[list[Cube]] = [[] for _ in range(m)]
+    for invec, outvec in sorted(result):
+        cube = _from_positional(invec)
+        for f in range(m):
+            if outvec[f] == _OUT_ON:
+                terms[f].append(cube)
+    return [tuple(sorted(t)) for t in terms]

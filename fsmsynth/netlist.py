@@ -1,0 +1,190 @@
+"""The netlist: gates and flip-flop cells joined by named nets.
+
+Plain immutable data, kept apart from the writers that turn it into Verilog or JSON.
+Gates are listed in an order where every gate's inputs are driven before it (flip-flop
+outputs and primary inputs are driven from the start).
+"""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+from dataclasses import dataclass
+
+from fsmsynth.cost import normal_terms
+from fsmsynth.logic.cover import Cover
+from fsmsynth.logic.cube import Cube
+from fsmsynth.names import RESERVED_PREFIX
+from fsmsynth.storage import Storage
+
+GATE_FUNCTIONS = ("not", "buf", "and", "or", "nand", "nor", "xor", "xnor", "const0", "const1")
+
+
+@dataclass(frozen=True, slots=True)
+class Gate:
+    """A logic gate: ``output = kind(inputs)``."""
+
+    name: str
+    kind: str
+    inputs: tuple[str, ...]
+    output: str
+
+    def __post_init__(self) -> None:
+        assert self.kind in GATE_FUNCTIONS, self.kind
+
+
+@dataclass(frozen=True, slots=True)
+class FlipFlop:
+    """An edge-triggered flip-flop holding state bit ``bit``.
+
+    ``pins`` connects each data pin (storage pin name, ``"J"``) to a net.  The cell is clocked
+    by the netlist's clock and reset asynchronously (active high) to ``reset_value``.
+    """
+
+    name: str
+    storage: Storage
+    bit: int
+    pins: tuple[tuple[str, str], ...]
+    q: str
+    reset_value: int
+
+    def pin_net(self, pin: str) -> str:
+        """The net on data pin ``pin``."""
+        return dict(self.pins)[pin]
+
+
+@dataclass(frozen=True, slots=True)
+class Netlist:
+    """A synchronous circuit: primary inputs, gates, flip-flops and output ports.
+
+    Attributes
+    ----------
+    name:
+        Module name.
+    inputs:
+        Primary input names; each is also the name of its net.
+    outputs:
+        ``(port, net)`` for every output, in declared order.
+    gates:
+        In an order where each gate's inputs are driven earlier.
+    flip_flops:
+        One per state bit, bit 0 first.
+    clock, reset:
+        Names of the clock and the asynchronous active-high reset.
+    """
+
+    name: str
+    inputs: tuple[str, ...]
+    outputs: tuple[tuple[str, str], ...]
+    gates: tuple[Gate, ...]
+    flip_flops: tuple[FlipFlop, ...]
+    clock: str = "clk"
+    reset: str = "rst"
+
+    @property
+    def reset_code(self) -> int:
+        """The state code the reset loads (bit b from flip-flop b)."""
+        return sum(ff.reset_value << ff.bit for ff in self.flip_flops)
+
+    @property
+    def width(self) -> int:
+        """Number of state bits."""
+        return len(self.flip_flops)
+
+    def nets_read(self) -> set[str]:
+        """Every net some gate, flip-flop pin or output port reads."""
+        read = {i for g in self.gates for i in g.inputs}
+        read.update(net for ff in self.flip_flops for _pin, net in ff.pins)
+        read.update(net for _port, net in self.outputs)
+        return read
+
+    def gate_counts(self) -> dict[str, int]:
+        """Logic gates by kind (ties to constants are not gates)."""
+        counts: dict[str, int] = {}
+        for g in self.gates:
+            if not g.kind.startswith("const"):
+                counts[g.kind] = counts.get(g.kind, 0) + 1
+        return counts
+
+
+def state_net(bit: int) -> str:
+    """Net of state bit ``bit`` (flip-flop output)."""
+    return f"{RESERVED_PREFIX}q{bit}"
+
+
+def build_netlist(name: str, inputs: Sequence[str], outputs: Sequence[str], cover: Cover,
+                  storages: Sequence[Storage], reset_code: int) -> Netlist:
+    """Build gates and flip-flops for a cover.
+
+    Follows the structural rules of :mod:`fsmsynth.cost`: one inverter per complemented
+    variable, one AND gate per distinct product of two or more literals, one OR gate per
+    distinct sum of two or more products, wires for single literals and single products.
+
+    Parameters
+    ----------
+    name, inputs, outputs:
+        Module name and port names.
+    cover:
+        Terms of every flip-flop pin (named as in the equations, ``J0``) and every output.
+    storages:
+        Storage kind of each state bit, bit 0 first.
+    reset_code:
+        The code loaded by reset.
+    """
+    k = len(storages)
+    var_nets = [state_net(b) for b in range(k)] + list(inputs)
+    inverted_nets = [f"{RESERVED_PREFIX}nq{b}" for b in range(k)] + [
+        f"{RESERVED_PREFIX}n_{i}" for i in inputs]
+    gates: list[Gate] = []
+
+    def new_gate(kind: str, ins: tuple[str, ...], out: str) -> None:
+        gates.append(Gate(name=f"{RESERVED_PREFIX}g{len(gates)}", kind=kind, inputs=ins,
+                          output=out))
+
+    normal = [normal_terms(t) for t in cover.terms]
+    live = [t for t in normal if t != (Cube.universe(),)]
+    inverted = sorted({v for terms in live for t in terms for v, pos in t.literals() if not pos})
+    for v in inverted:
+        new_gate("not", (var_nets[v],), inverted_nets[v])
+
+    def literal_net(v: int, positive: bool) -> str:
+        return var_nets[v] if positive else inverted_nets[v]
+
+    term_net: dict[Cube, str] = {}
+    products: list[Cube] = []
+    for terms in live:
+        for t in terms:
+            if t in term_net:
+                continue
+            lits = tuple(literal_net(v, p) for v, p in t.literals())
+            if len(lits) == 1:
+                term_net[t] = lits[0]
+            else:
+                term_net[t] = f"{RESERVED_PREFIX}p{len(products)}"
+                products.append(t)
+                new_gate("and", lits, term_net[t])
+
+    pin_names = {f"{pin}{b}": (b, pin) for b, s in enumerate(storages) for pin in s.pins}
+    sum_net: dict[tuple[Cube, ...], str] = {}
+    signal_net: dict[str, str] = {}
+    for signal, terms in zip(cover.names, normal):
+        own = (f"{RESERVED_PREFIX}{pin_names[signal][1].lower()}{pin_names[signal][0]}"
+               if signal in pin_names else signal)
+        if not terms or terms == (Cube.universe(),):
+            new_gate("const1" if terms else "const0", (), own)
+            signal_net[signal] = own
+        elif len(terms) == 1:
+            signal_net[signal] = term_net[terms[0]]
+        elif terms in sum_net:
+            signal_net[signal] = sum_net[terms]
+        else:
+            new_gate("or", tuple(term_net[t] for t in terms), own)
+            sum_net[terms] = signal_net[signal] = own
+
+    flip_flops = tuple(
+        FlipFlop(name=f"{RESERVED_PREFIX}ff{b}", storage=s, bit=b,
+                 pins=tuple((pin, signal_net[f"{pin}{b}"]) for pin in s.pins),
+                 q=state_net(b), reset_value=reset_code >> b & 1)
+        for b, s in enumerate(storages))
+    return Netlist(name=name, inputs=tuple(inputs),
+                   outputs=tuple((o, signal_net[o]) for o in outputs),
+                   gates=tuple(gates), flip_flops=flip_flops)
