@@ -1,0 +1,151 @@
+"""The ``fsmsynth`` command: argument parsing and printing only; the work is the library's."""
+
+from __future__ import annotations
+
+import argparse
+import json
+import sys
+from collections.abc import Sequence
+from pathlib import Path
+
+from fsmsynth.version import __version__
+from fsmsynth.check import check_table
+from fsmsynth.errors import FsmSynthError, OptionError, VerificationError
+from fsmsynth.files import write_if_changed
+from fsmsynth.formats import read_table
+from fsmsynth.pipeline import UNUSED_POLICIES, Design, synthesize
+from fsmsynth.storage import STORAGES
+from fsmsynth.writers.testbench import write_testbench
+
+CAUTION = (
+    "Caution: this logic is only as safe as the table it came from. Synchronise asynchronous\n"
+    "inputs before they reach the machine, define unused states and drive reset, and verify\n"
+    "timing in the target technology. For safety interlocks and machinery, local codes and\n"
+    "licensed engineering practice decide, not this tool."
+)
+
+
+def _encoding_arg(text: str) -> str | dict[str, str]:
+    """``binary``/``gray``/``one-hot``, or ``state=code,state=code`` (codes MSB first)."""
+    if "=" not in text:
+        return text
+    mapping = {}
+    for item in text.split(","):
+        state, sep, code = item.partition("=")
+        if not sep or not state.strip() or not code.strip():
+            raise OptionError(f"--encoding {text!r}: write state=code pairs separated by commas")
+        mapping[state.strip()] = code.strip()
+    return mapping
+
+
+def _parser() -> argparse.ArgumentParser:
+    parser = argparse.ArgumentParser(
+        prog="fsmsynth",
+        description="Synthesize next-state and output logic and a gate netlist from a state table.")
+    parser.add_argument("--version", action="version", version=f"fsmsynth {__version__}")
+    sub = parser.add_subparsers(dest="command", required=True)
+
+    build = sub.add_parser("build", help="synthesize, verify and write Verilog and JSON")
+    build.add_argument("spec", help="state table: .toml spec or .csv table")
+    build.add_argument("--storage", default="d", choices=sorted(STORAGES),
+                       help="flip-flop kind (default d)")
+    build.add_argument("--encoding", default="binary", type=str,
+                       help="binary, gray, one-hot, or state=code,... (default binary)")
+    build.add_argument("--unused", default="dont-care", choices=UNUSED_POLICIES,
+                       help="unused state codes: don't cares, or safe (go to reset)")
+    build.add_argument("-o", "--out", default="build", help="output folder (default build/)")
+    build.add_argument("--testbench", action="store_true",
+                       help="also write <name>_tb.v, a self-checking testbench from the table")
+    build.add_argument("--json", action="store_true", help="print a JSON report instead of text")
+
+    check = sub.add_parser("check", help="validate a state table and report what it leaves open")
+    check.add_argument("spec", help="state table: .toml spec or .csv table")
+    check.add_argument("--json", action="store_true", help="print a JSON report instead of text")
+    return parser
+
+
+def _report(design: Design) -> dict[str, object]:
+    return {
+        "machine": design.table.name,
+        "storage": design.storage,
+        "encoding": {"method": design.encoding.method,
+                     "codes": {s: design.encoding.code_string(s) for s in design.table.states}},
+        "unused": design.unused,
+        "equations": {name: eq.expression for name, eq in design.equations.items()},
+        "cost": design.cost.as_dict(),
+        "verified": bool(design.verification),
+        "verification": design.verification.summary() if design.verification else None,
+    }
+
+
+def _build(args: argparse.Namespace) -> int:
+    table = read_table(args.spec)
+    design = synthesize(table, args.storage, _encoding_arg(args.encoding), unused=args.unused)
+    out = Path(args.out)
+    files = {out / f"{table.name}.v": design.verilog, out / f"{table.name}.json": design.json}
+    if args.testbench:
+        files[out / f"{table.name}_tb.v"] = write_testbench(table)
+    written = {str(p): write_if_changed(p, text) for p, text in files.items()}
+    if args.json:
+        report = _report(design)
+        report["files"] = written
+        print(json.dumps(report, indent=2))
+        return 0
+    codes = ", ".join(f"{s}={design.encoding.code_string(s)}" for s in table.states)
+    print(f"{table.name}: {len(table.states)} states, {design.storage.upper()} flip-flops, "
+          f"{design.encoding.method} encoding ({codes})")
+    print()
+    print("Equations:")
+    for eq in design.equations.values():
+        print(f"  {eq}")
+    c = design.cost
+    print()
+    print("Cost:")
+    print(f"  product terms {c.product_terms}, literals {c.literals}")
+    print("  gates " + ", ".join(f"{k.upper()} {n}" for k, n in c.gates.items())
+          + f"; gate inputs {c.gate_inputs}")
+    print("  flip-flops " + ", ".join(f"{k.upper()} {n}" for k, n in c.flip_flops.items()))
+    print(f"  total {c.total:g} (gate inputs + flip-flop weights)")
+    print()
+    assert design.verification is not None
+    print(design.verification.summary())
+    for path, changed in written.items():
+        print(f"{'wrote' if changed else 'unchanged'} {path}")
+    print()
+    print(CAUTION)
+    return 0
+
+
+def _check(args: argparse.Namespace) -> int:
+    table = read_table(args.spec)
+    report = check_table(table)
+    if args.json:
+        print(json.dumps({
+            "machine": table.name, "kind": table.kind, "states": list(table.states),
+            "inputs": list(table.inputs), "outputs": list(table.outputs), "reset": table.reset,
+            "unreachable": list(report.unreachable),
+            "unspecified": {s: list(c) for s, c in report.unspecified},
+            "dont_care_next": [list(x) for x in report.dont_care_next],
+        }, indent=2))
+        return 0
+    print(f"{args.spec}: valid {table.kind} table '{table.name}': {len(table.states)} states, "
+          f"{len(table.inputs)} inputs, {len(table.outputs)} outputs, reset {table.reset!r}")
+    for line in report.lines():
+        print(f"  note: {line}")
+    if report.completely_specified and not report.unreachable:
+        print("  every state reachable, every transition specified")
+    return 0
+
+
+def main(argv: Sequence[str] | None = None) -> int:
+    """Run the command line; returns the exit status (0 ok, 2 bad input, 1 failure)."""
+    args = _parser().parse_args(argv)
+    try:
+        return {"build": _build, "check": _check}[args.command](args)
+    except FsmSynthError as exc:
+        print(f"fsmsynth: error: {exc}", file=sys.stderr)
+        return 1 if isinstance(exc, VerificationError) else 2
+
+
+if __name__ == "__main__":
+    sys.exit(main())

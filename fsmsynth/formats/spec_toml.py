@@ -1,0 +1,184 @@
+"""Read fsmsynth's TOML state-table format (documented in README, "The spec format").
+
+Every error names the file and line: TOML syntax errors carry the parser's position, and
+table errors are traced back to the line of the row, key or entry at fault.
+"""
+
+from __future__ import annotations
+
+import re
+import tomllib
+from pathlib import Path
+from typing import Any
+
+from fsmsynth.errors import SpecFileError, TableError
+from fsmsynth.table import StateTable
+
+KEYS = ("name", "kind", "inputs", "outputs", "reset", "states", "rows", "state_outputs")
+_POSITION = re.compile(r"\(at line (\d+), column \d+\)")
+
+
+def read_spec(path: str | Path) -> StateTable:
+    """Read a state table from a ``.toml`` spec file.
+
+    Raises
+    ------
+    SpecFileError
+        With ``file:line:`` first in the message.
+    """
+    p = Path(path)
+    try:
+        text = p.read_text(encoding="utf-8")
+    except OSError as exc:
+        raise SpecFileError(f"cannot read the file: {exc.strerror}", path=str(p)) from None
+    except UnicodeDecodeError:
+        raise SpecFileError("the file is not UTF-8 text", path=str(p)) from None
+    return parse_spec(text, str(p))
+
+
+def parse_spec(text: str, path: str = "<string>") -> StateTable:
+    """Parse spec text; ``path`` is used in error messages."""
+    try:
+        data = tomllib.loads(text)
+    except tomllib.TOMLDecodeError as exc:
+        match = _POSITION.search(str(exc))
+        message = _POSITION.sub("", str(exc)).strip()
+        raise SpecFileError(f"not valid TOML: {message}", path=path,
+                            line=int(match.group(1)) if match else None) from None
+    lines = _Lines(text)
+    for key in data:
+        if key not in KEYS:
+            raise SpecFileError(f"unknown key {key!r}: the keys are {', '.join(KEYS)}",
+                                path=path, line=lines.key(key))
+    for key in ("name", "inputs", "outputs", "reset", "rows"):
+        if key not in data:
+            raise SpecFileError(f"missing key {key!r}", path=path)
+    _expect(data, "name", str, path, lines)
+    _expect(data, "kind", str, path, lines)
+    _expect(data, "reset", str, path, lines)
+    for key in ("inputs", "outputs", "states"):
+        _expect_strings(data, key, path, lines)
+    if not isinstance(data["rows"], list):
+        raise SpecFileError("'rows' must be an array of rows", path=path, line=lines.key("rows"))
+    kind = data.get("kind", "mealy")
+    rows = []
+    for i, raw in enumerate(data["rows"]):
+        if not isinstance(raw, list) or not all(isinstance(x, str) for x in raw) or not (
+                len(raw) == 4 or (kind == "moore" and len(raw) == 3)):
+            shape = ('["state", "input cube", "next state"]' if kind == "moore"
+                     else '["state", "input cube", "next state", "output cube"]')
+            raise SpecFileError(f"row {i + 1}: write it as {shape} (strings; next state "
+                                "\"-\" for a don't care)", path=path, line=lines.row(i), row=i)
+        nxt = None if raw[2] == "-" else raw[2]
+        out = raw[3] if len(raw) == 4 else None
+        rows.append((raw[0], raw[1], nxt, out))
+    outs = data.get("state_outputs")
+    if outs is not None and (not isinstance(outs, dict)
+                             or not all(isinstance(v, str) for v in outs.values())):
+        raise SpecFileError("'state_outputs' must be a table of state = \"output cube\"",
+                            path=path, line=lines.key("state_outputs"))
+    try:
+        return StateTable.from_rows(name=data["name"], kind=kind, inputs=data["inputs"],
+                                    outputs=data["outputs"], reset=data["reset"], rows=rows,
+                                    states=data.get("states"), state_outputs=outs)
+    except TableError as exc:
+        raise SpecFileError(exc.message, path=path, line=lines.locate(exc, data), state=exc.state,
+                            row=exc.row, name=exc.name) from None
+
+
+def _expect(data: dict[str, Any], key: str, kind: type, path: str, lines: _Lines) -> None:
+    if key in data and not isinstance(data[key], kind):
+        raise SpecFileError(f"{key!r} must be a string", path=path, line=lines.key(key))
+
+
+def _expect_strings(data: dict[str, Any], key: str, path: str, lines: _Lines) -> None:
+    value = data.get(key, [])
+    if not isinstance(value, list) or not all(isinstance(v, str) for v in value):
+        raise SpecFileError(f"{key!r} must be an array of strings", path=path,
+                            line=lines.key(key))
+
+
+class _Lines:
+    """Where things are in the spec text, for error messages."""
+
+    def __init__(self, text: str) -> None:
+        self.text = text
+        self.lines = text.splitlines()
+
+    def key(self, key: str, section: str | None = None) -> int | None:
+        """Line of ``key = ...`` (bare or quoted), inside ``[section]`` when given."""
+        pattern = re.compile(rf"""\s*(?:{re.escape(key)}|"{re.escape(key)}"|'{re.escape(key)}')\s*=""")
+        inside = section is None
+        for n, line in enumerate(self.lines, start=1):
+            stripped = line.strip()
+            if stripped.startswith("["):
+                inside = section is not None and stripped.strip("[] \t") == section
+                if section is None:
+                    return None
+                continue
+            if inside and pattern.match(line):
+                return n
+        return None
+
+    def row(self, index: int) -> int | None:
+        """Line where element ``index`` of the top-level ``rows`` array starts."""
+        start = self.key("rows")
+        if start is None:
+            return None
+        offset = sum(len(line) + 1 for line in self.lines[:start - 1])
+        text, line, depth, i = self.text, start, 0, offset
+        seen = -1
+        while i < len(text):
+            ch = text[i]
+            if ch == "\n":
+                line += 1
+            elif ch == "#":
+                while i < len(text) and text[i] != "\n":
+                    i += 1
+                continue
+            elif ch in "\"'":
+                i = _skip_string(text, i)
+                continue
+            elif ch == "[":
+                depth += 1
+                if depth == 2:
+                    seen += 1
+                    if seen == index:
+                        return line
+            elif ch == "]":
+                depth -= 1
+                if depth == 0:
+                    return None
+            i += 1
+        return None
+
+    def locate(self, exc: TableError, data: dict[str, Any]) -> int | None:
+        """Best line for a table error."""
+        if exc.row is not None:
+            return self.row(exc.row)
+        if exc.name is not None:
+            for key in ("inputs", "outputs", "name"):
+                value = data.get(key)
+                if value == exc.name or (isinstance(value, list) and exc.name in value):
+                    return self.key(key)
+        if exc.state is not None:
+            where = self.key(exc.state, "state_outputs")
+            if where is not None:
+                return where
+            if data.get("reset") == exc.state:
+                return self.key("reset")
+        if "reset" in exc.message and "reset" in data:
+            return self.key("reset")
+        return None
+
+
+def _skip_string(text: str, i: int) -> int:
+    """Index just past the TOML string starting at ``i``."""
+    quote = text[i]
+    if text.startswith(quote * 3, i):
+        end = text.find(quote * 3, i + 3)
+        return len(text) if end < 0 else end + 3
+    j = i + 1
+    while j < len(text) and text[j] not in (quote, "\n"):
+        j += 2 if quote == '"' and text[j] == "\\" else 1
+    return j + 1

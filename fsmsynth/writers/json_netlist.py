@@ -1,0 +1,52 @@
+"""The netlist as JSON, in fsmsynth's own documented schema (see README, "JSON netlist").
+
+Schema ``fsmsynth-netlist``, version 1::
+
+    {"schema": "fsmsynth-netlist", "version": 1, "module": NAME,
+     "clock": "clk", "reset": "rst",
+     "inputs": [NAME, ...], "outputs": [{"port": NAME, "net": NET}, ...],
+     "gates": [{"name": G, "kind": "not|and|or|const0|const1|...", "inputs": [NET, ...],
+                "output": NET}, ...],
+     "flip_flops": [{"name": F, "kind": "d|t|jk|sr", "bit": B, "pins": {PIN: NET, ...},
+                     "q": NET, "reset_value": 0|1, "edge": "rising"}, ...],
+     "cost": {...}}
+
+Keys are written in a fixed order and the text is byte-identical for equal netlists.
+"""
+
+from __future__ import annotations
+
+import json
+from collections.abc import Mapping
+
+from fsmsynth.netlist import Netlist
+
+SCHEMA = "fsmsynth-netlist"
+VERSION = 1
+
+
+def netlist_data(netlist: Netlist, cost: Mapping[str, object] | None = None) -> dict[str, object]:
+    """The netlist as plain JSON-ready data."""
+    data: dict[str, object] = {
+        "schema": SCHEMA,
+        "version": VERSION,
+        "module": netlist.name,
+        "clock": netlist.clock,
+        "reset": netlist.reset,
+        "inputs": list(netlist.inputs),
+        "outputs": [{"port": p, "net": n} for p, n in netlist.outputs],
+        "gates": [{"name": g.name, "kind": g.kind, "inputs": list(g.inputs), "output": g.output}
+                  for g in netlist.gates],
+        "flip_flops": [{"name": ff.name, "kind": ff.storage.name, "bit": ff.bit,
+                        "pins": {pin: net for pin, net in ff.pins}, "q": ff.q,
+                        "reset_value": ff.reset_value, "edge": "rising"}
+                       for ff in netlist.flip_flops],
+    }
+    if cost is not None:
+        data["cost"] = dict(cost)
+    return data
+
+
+def write_json_netlist(netlist: Netlist, cost: Mapping[str, object] | None = None) -> str:
+    """JSON text of the netlist (and its cost summary when given)."""
+    return json.dumps(netlist_data(netlist, cost), indent=2) + "\n"
