@@ -1,0 +1,75 @@
+"""The command line: output, files, exit codes, no tracebacks."""
+
+from __future__ import annotations
+
+import json
+import subprocess
+import sys
+from pathlib import Path
+
+import pytest
+
+from fsmsynth.cli import main
+
+EXAMPLES = Path(__file__).resolve().parent.parent / "examples"
+LOCKER = str(EXAMPLES / "parcel_locker.toml")
+
+
+def test_build_prints_equations_cost_and_proof(tmp_path: Path,
+                                               capsys: pytest.CaptureFixture[str]) -> None:
+    assert main(["build", LOCKER, "--storage", "jk", "--encoding", "binary",
+                 "-o", str(tmp_path)]) == 0
+    out = capsys.readouterr().out
+    assert "J0 = " in out and "K1 = " in out and "unlock = " in out
+    assert "product terms" in out and "flip-flops JK 2" in out
+    assert "verified: netlist matches the table from reset" in out
+    assert "Synchronise asynchronous" in out
+    assert (tmp_path / "parcel_locker.v").read_text().startswith("// parcel_locker")
+    data = json.loads((tmp_path / "parcel_locker.json").read_text())
+    assert data["schema"] == "fsmsynth-netlist" and data["module"] == "parcel_locker"
+    assert [ff["kind"] for ff in data["flip_flops"]] == ["jk", "jk"]
+
+
+def test_build_twice_rewrites_nothing(tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    main(["build", LOCKER, "-o", str(tmp_path)])
+    first = {p.name: (p.read_bytes(), p.stat().st_mtime_ns) for p in tmp_path.iterdir()}
+    capsys.readouterr()
+    main(["build", LOCKER, "-o", str(tmp_path)])
+    assert "unchanged" in capsys.readouterr().out
+    assert {p.name: (p.read_bytes(), p.stat().st_mtime_ns) for p in tmp_path.iterdir()} == first
+
+
+def test_build_json_report(tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    main(["build", str(EXAMPLES / "greenhouse_vent.toml"), "--storage", "t", "--json",
+          "-o", str(tmp_path)])
+    report = json.loads(capsys.readouterr().out)
+    assert report["verified"] is True and report["storage"] == "t"
+    assert set(report["equations"]) >= {"T0", "T1", "motor_open", "motor_close"}
+
+
+def test_build_with_given_codes(tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    assert main(["build", LOCKER, "--encoding", "locked=11,unlocked=01,open=10,warn=00",
+                 "-o", str(tmp_path)]) == 0
+    assert "locked=11" in capsys.readouterr().out
+
+
+def test_check_reports(capsys: pytest.CaptureFixture[str]) -> None:
+    assert main(["check", str(EXAMPLES / "rail_crossing.csv")]) == 0
+    assert "valid mealy table 'rail_crossing'" in capsys.readouterr().out
+
+
+def test_bad_spec_exits_nonzero_without_traceback(tmp_path: Path) -> None:
+    spec = tmp_path / "bad.toml"
+    spec.write_text(Path(LOCKER).read_text().replace('"-01", "warn", ', '"-01", "wran", '))
+    run = subprocess.run([sys.executable, "-m", "fsmsynth.cli", "build", str(spec), "-o",
+                          str(tmp_path)], capture_output=True, text=True)
+    assert run.returncode == 2
+    assert "Traceback" not in run.stderr
+    assert run.stderr == (f"fsmsynth: error: {spec}:22: row 8 (state 'open'): next state "
+                          "'wran' is unknown; give it rows of its own or declare it in states\n")
+
+
+def test_unknown_encoding_is_a_clear_error(capsys: pytest.CaptureFixture[str]) -> None:
+    assert main(["build", LOCKER, "--encoding", "johnson"]) == 2
+    assert capsys.readouterr().err == ("fsmsynth: error: unknown encoding 'johnson': use one of "
+                                       "binary, gray, one-hot, or a mapping from state to code\n")
