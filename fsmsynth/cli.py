@@ -8,13 +8,13 @@ import sys
 from collections.abc import Sequence
 from pathlib import Path
 
-from fsmsynth.version import __version__
 from fsmsynth.check import check_table
 from fsmsynth.errors import FsmSynthError, OptionError, VerificationError
 from fsmsynth.files import write_if_changed
 from fsmsynth.formats import read_table
 from fsmsynth.pipeline import UNUSED_POLICIES, Design, synthesize
 from fsmsynth.storage import STORAGES
+from fsmsynth.version import __version__
 from fsmsynth.writers.testbench import write_testbench
 
 CAUTION = (

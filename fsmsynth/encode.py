@@ -94,9 +94,9 @@ def encode(table: StateTable, method: str | Mapping[str, int | str] = "binary") 
         )
     order = [table.reset] + [s for s in table.states if s != table.reset]
     width = max(1, (len(order) - 1).bit_length())
-    number = (lambda i: i) if method == "binary" else (lambda i: i ^ (i >> 1))
-    return Encoding(method=method, width=width,
-                    codes=MappingProxyType({s: number(i) for i, s in enumerate(order)}))
+    gray = method == "gray"
+    return Encoding(method=method, width=width, codes=MappingProxyType(
+        {s: (i ^ (i >> 1)) if gray else i for i, s in enumerate(order)}))
 
 
 def _given(table: StateTable, mapping: Mapping[str, int | str]) -> Encoding:
@@ -121,7 +121,8 @@ def _given(table: StateTable, mapping: Mapping[str, int | str]) -> Encoding:
         elif isinstance(raw, int) and not isinstance(raw, bool) and raw >= 0:
             codes[state] = raw
         else:
-            raise EncodingError(f"code {raw!r} of state {state!r}: give an int >= 0 or a 0/1 string")
+            raise EncodingError(
+                f"code {raw!r} of state {state!r}: give an int >= 0 or a 0/1 string")
     if len(widths) > 1:
         raise EncodingError(f"codes are written with different widths {sorted(widths)}: "
                             "write all of them with the same number of bits")

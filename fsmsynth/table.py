@@ -101,9 +101,8 @@ class StateTable:
         known = set(states_t)
         for i, (state, _cube, nxt, _out) in enumerate(rows_t):
             if state not in known:
-                raise TableError(
-                    f"row {i + 1}: unknown state {state!r}; declare it in states", state=state, row=i
-                )
+                raise TableError(f"row {i + 1}: unknown state {state!r}; declare it in states",
+                                 state=state, row=i)
             if nxt is not None and nxt not in known:
                 raise TableError(
                     f"row {i + 1} (state {state!r}): next state {nxt!r} is unknown; "

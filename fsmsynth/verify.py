@@ -190,22 +190,27 @@ def _state_specs(table: StateTable, classes: Sequence[Cube], ones: int) -> dict[
 def _input_classes(table: StateTable, netlist: Netlist) -> list[Cube]:
     read = netlist.nets_read()
     cubes = [Cube.from_string(r[1]) for r in table.rows]
-    cubes += [Cube(care=1 << j, value=1 << j) for j, name in enumerate(table.inputs) if name in read]
+    cubes += [Cube(care=1 << j, value=1 << j)
+              for j, name in enumerate(table.inputs) if name in read]
     return partition(cubes)
 
 
-def verify(netlist: Netlist, table: StateTable, *, safe_unused: Sequence[int] = ()) -> Verification:
+def verify(netlist: Any, table: Any = None, *, safe_unused: Sequence[int] | None = None
+           ) -> Verification:
     """Prove that ``netlist`` realizes ``table`` from reset, or find the shortest counterexample.
 
     Parameters
     ----------
     netlist:
-        The circuit; its inputs and output ports must carry the table's names.
+        The circuit; its inputs and output ports must carry the table's names.  A design
+        returned by :func:`fsmsynth.synthesize` may be given instead of both arguments, and
+        the two arguments may come in either order.
     table:
         The specification.
     safe_unused:
         Codes from which the netlist must reach its reset code in one clock under every
-        input (the ``unused="safe"`` promise); checked exactly.
+        input (the ``unused="safe"`` promise); checked exactly.  For a design made with
+        ``unused="safe"`` its unused codes are checked by default.
 
     Returns
     -------
@@ -213,8 +218,20 @@ def verify(netlist: Netlist, table: StateTable, *, safe_unused: Sequence[int] = 
         ``equivalent`` with the number of product states explored, or the counterexample
         with the fewest clock cycles.
     """
-    assert tuple(netlist.inputs) == table.inputs
-    assert tuple(p for p, _n in netlist.outputs) == table.outputs
+    if table is None and hasattr(netlist, "netlist") and hasattr(netlist, "table"):
+        design = netlist
+        netlist, table = design.netlist, design.table
+        if safe_unused is None and getattr(design, "unused", None) == "safe":
+            safe_unused = design.encoding.unused_codes()
+    if isinstance(netlist, StateTable) and isinstance(table, Netlist):
+        netlist, table = table, netlist
+    if not isinstance(netlist, Netlist) or not isinstance(table, StateTable):
+        raise TypeError("verify() takes a netlist and a state table, or a design")
+    safe_unused = safe_unused or ()
+    ports = tuple(p for p, _ in netlist.outputs)
+    if tuple(netlist.inputs) != table.inputs or ports != table.outputs:
+        raise ValueError("the netlist's inputs and outputs are not the table's: "
+                         f"{netlist.inputs} / {ports} against {table.inputs} / {table.outputs}")
     classes = _input_classes(table, netlist)
     ones = (1 << len(classes)) - 1
     input_vectors = {

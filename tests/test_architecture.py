@@ -32,7 +32,8 @@ def test_nothing_imports_upward() -> None:
     for path in sorted(PACKAGE.rglob("*.py")):
         me = module_name(path)
         for node in ast.walk(ast.parse(path.read_text())):
-            if isinstance(node, ast.ImportFrom) and node.module and node.module.startswith("fsmsynth"):
+            if (isinstance(node, ast.ImportFrom) and node.module
+                    and node.module.startswith("fsmsynth")):
                 target = node.module
                 if rank(target) > rank(me):
                     problems.append(f"{me} imports {target}")

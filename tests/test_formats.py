@@ -7,12 +7,11 @@ from pathlib import Path
 
 import pytest
 from hypothesis import given, settings
+from strategies import state_tables
 
 from fsmsynth import SpecFileError
 from fsmsynth.formats import parse_csv, parse_spec, read_table
 from fsmsynth.writers.spec_toml import write_spec
-
-from strategies import state_tables
 
 EXAMPLES = Path(__file__).resolve().parent.parent / "examples"
 
@@ -77,7 +76,8 @@ def test_unknown_key() -> None:
 
 def test_bad_name_reports_the_line_of_inputs() -> None:
     text = GOOD.replace('"stop"]', '"end"]').replace('"end"', '"always"')
-    assert error_of(text) == "lamp.toml:4: input name 'always' is a Verilog keyword: choose another name"
+    assert error_of(text) == ("lamp.toml:4: input name 'always' is a Verilog keyword: "
+                              "choose another name")
 
 
 def test_unknown_reset_reports_its_line() -> None:
@@ -142,3 +142,33 @@ def test_examples_read(path: Path) -> None:
 def test_round_trip(table: object) -> None:
     """Writing a table and reading it back gives an equal table."""
     assert parse_spec(write_spec(table)) == table  # type: ignore[arg-type]
+
+
+def test_rows_must_be_an_array() -> None:
+    text = GOOD.split("rows = [")[0] + 'rows = "none"\n'
+    assert error_of(text) == "lamp.toml:8: 'rows' must be an array of rows"
+
+
+def test_inputs_must_be_strings() -> None:
+    assert error_of(GOOD.replace('["go", "stop"]', '["go", 3]')) == (
+        "lamp.toml:4: 'inputs' must be an array of strings")
+
+
+def test_csv_header_must_name_state_and_next() -> None:
+    with pytest.raises(SpecFileError) as info:
+        parse_csv("# a table\nstate,a,y\ns0,1,0\n", "t.csv")
+    assert str(info.value) == ("t.csv:2: the header must start with 'state' and have a 'next' "
+                               "column between the inputs and the outputs")
+
+
+def test_csv_row_with_wrong_cell_count() -> None:
+    with pytest.raises(SpecFileError) as info:
+        parse_csv("state,a,next,y\ns0,1,s0\n", "t.csv")
+    assert str(info.value) == "t.csv:2: expected 4 cells like the header, found 3"
+
+
+def test_non_utf8_file(tmp_path: Path) -> None:
+    bad = tmp_path / "bad.toml"
+    bad.write_bytes(b"name = \"\xff\"\n")
+    with pytest.raises(SpecFileError, match=r"bad\.toml: the file is not UTF-8 text$"):
+        read_table(bad)

@@ -7,13 +7,12 @@ import dataclasses
 import pytest
 from hypothesis import given, settings
 from hypothesis import strategies as st
+from reference import brute_force_equivalent, step, table_walk
+from strategies import state_tables
 
 from fsmsynth import STORAGES, StateTable, synthesize, verify
 from fsmsynth.netlist import Gate, Netlist
 from fsmsynth.verify import evaluate
-
-from reference import brute_force_equivalent, step, table_walk
-from strategies import state_tables
 
 ENCODINGS = ["binary", "gray", "one-hot"]
 
@@ -141,3 +140,26 @@ def test_same_input_gives_byte_identical_output() -> None:
     first = synthesize(table, "jk", "one-hot")
     again = synthesize(table, "jk", "one-hot")
     assert first.verilog == again.verilog and first.json == again.json
+
+
+def test_verify_takes_a_design_or_either_argument_order() -> None:
+    table = StateTable.from_rows(
+        name="twice", inputs=["x"], outputs=["y"], reset="a",
+        rows=[("a", "0", "a", "0"), ("a", "1", "b", "0"), ("b", "-", "a", "1")])
+    design = synthesize(table, "t", unused="safe")
+    assert verify(design).safe_unused is None  # two states in one bit: no unused code
+    assert verify(design.netlist, table) and verify(table, design.netlist)
+
+
+def test_safe_unused_codes_return_to_reset_in_one_clock() -> None:
+    table = StateTable.from_rows(
+        name="three", inputs=["x"], outputs=["y"], reset="a",
+        rows=[("a", "1", "b", "0"), ("a", "0", "a", "0"), ("b", "-", "c", "0"),
+              ("c", "-", "a", "1")])
+    for storage in sorted(STORAGES):
+        design = synthesize(table, storage, "binary", unused="safe")
+        assert design.verification is not None and design.verification.safe_unused
+        (unused,) = design.encoding.unused_codes()
+        for word in ("0", "1"):
+            nxt, _outs = step(design.netlist, unused, word)
+            assert nxt == design.encoding.codes["a"]

@@ -156,3 +156,20 @@ def test_report_lists_unreachable_states_and_missing_inputs() -> None:
         "state 'idle': no row for inputs 0- (next state and outputs are don't cares there)",
         "state 'lit': next state is a don't care for inputs '--'",
     ]
+
+
+def test_empty_state_name() -> None:
+    fails("row 1: state '' must be a non-empty name other than '-'", rows=[("", "--", None, "0")])
+
+
+def test_next_state_of_wrong_type() -> None:
+    fails("row 1 (state 'idle'): next state 3 must be a state name, or None for a don't care",
+          rows=[("idle", "--", 3, "0")])
+
+
+def test_state_declared_twice() -> None:
+    fails("state 'idle' is declared twice in states", states=["idle", "lit", "idle"])
+
+
+def test_input_named_like_the_machine() -> None:
+    fails("input name 'lamp' is the machine name too: rename one of them", inputs=["lamp", "b"])

@@ -8,7 +8,7 @@ from fsmsynth.formats.csv_table import parse_csv, read_csv
 from fsmsynth.formats.spec_toml import parse_spec, read_spec
 from fsmsynth.table import StateTable
 
-__all__ = ["read_table", "read_spec", "parse_spec", "read_csv", "parse_csv"]
+__all__ = ["parse_csv", "parse_spec", "read_csv", "read_spec", "read_table"]
 
 
 def read_table(path: str | Path) -> StateTable:

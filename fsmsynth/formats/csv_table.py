@@ -37,7 +37,7 @@ def read_csv(path: str | Path) -> StateTable:
 
 def parse_csv(text: str, path: str = "<string>", *, default_name: str = "machine") -> StateTable:
     """Parse CSV text; see the module docstring for the layout."""
-    settings = {"name": default_name, "kind": "mealy"}
+    settings: dict[str, str] = {"name": default_name, "kind": "mealy"}
     records: list[tuple[int, list[str]]] = []
     for number, line in enumerate(text.splitlines(), start=1):
         stripped = line.strip()
@@ -59,7 +59,8 @@ def parse_csv(text: str, path: str = "<string>", *, default_name: str = "machine
                             "between the inputs and the outputs", path=path, line=header_line)
     split = header.index("next")
     inputs, outputs = header[1:split], header[split + 1:]
-    rows, lines = [], []
+    rows: list[tuple[str, str, str | None, str | None]] = []
+    lines: list[int] = []
     moore: dict[str, tuple[str, int]] = {}
     for number, cells in records[1:]:
         if len(cells) != len(header):
@@ -82,15 +83,15 @@ def parse_csv(text: str, path: str = "<string>", *, default_name: str = "machine
         else:
             rows.append((state, cube, None if nxt == "-" else nxt, out))
         lines.append(number)
-    reset = settings.get("reset", rows[0][0] if rows else None)
+    reset = settings.get("reset") or (rows[0][0] if rows else None)
     try:
         return StateTable.from_rows(
             name=settings["name"], kind=settings["kind"], inputs=inputs, outputs=outputs,
             rows=rows, reset=reset,
             state_outputs={s: o for s, (o, _n) in moore.items()} if moore else None)
     except TableError as exc:
-        line = lines[exc.row] if exc.row is not None else None
-        if line is None and exc.name is not None:
-            line = header_line
-        raise SpecFileError(exc.message, path=path, line=line, state=exc.state, row=exc.row,
+        where = lines[exc.row] if exc.row is not None else None
+        if where is None and exc.name is not None:
+            where = header_line
+        raise SpecFileError(exc.message, path=path, line=where, state=exc.state, row=exc.row,
                             name=exc.name) from None

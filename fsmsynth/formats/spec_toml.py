@@ -107,7 +107,8 @@ class _Lines:
 
     def key(self, key: str, section: str | None = None) -> int | None:
         """Line of ``key = ...`` (bare or quoted), inside ``[section]`` when given."""
-        pattern = re.compile(rf"""\s*(?:{re.escape(key)}|"{re.escape(key)}"|'{re.escape(key)}')\s*=""")
+        k = re.escape(key)
+        pattern = re.compile(rf"""\s*(?:{k}|"{k}"|'{k}')\s*=""")
         inside = section is None
         for n, line in enumerate(self.lines, start=1):
             stripped = line.strip()

@@ -10,10 +10,10 @@ pragma with a comment saying why.
 
 from __future__ import annotations
 
-from fsmsynth.version import __version__
-from fsmsynth.netlist import FlipFlop, Netlist
 from fsmsynth.names import RESERVED_PREFIX
+from fsmsynth.netlist import FlipFlop, Netlist
 from fsmsynth.storage import Storage
+from fsmsynth.version import __version__
 
 _PRIMITIVES = {"not", "buf", "and", "or", "nand", "nor", "xor", "xnor"}
 
@@ -52,7 +52,8 @@ def write_verilog(netlist: Netlist, *, header: str = "") -> str:
         sep = "," if idx < len(decls) - 1 else ""
         name = decl.split()[-1]
         if name in unused_inputs:
-            lines.append("    /* verilator lint_off UNUSED */  // the logic does not need this input")
+            lines.append("    /* verilator lint_off UNUSED */  "
+                         "// the logic does not need this input")
             lines.append(f"    {decl}{sep}")
             lines.append("    /* verilator lint_on UNUSED */")
         else:
@@ -100,8 +101,12 @@ def _instance(ff: FlipFlop, netlist: Netlist) -> str:
 
 def _cell(storage: Storage) -> list[str]:
     pins = "".join(f"    input  wire {p.lower()},\n" for p in storage.pins)
+    guard = f"{cell_module_name(storage).upper()}_DEFINED"
     return [
         f"// {storage.title}: {storage.equation}; rising edge, asynchronous active-high reset.",
+        "// Guarded, so that several generated designs can be compiled together.",
+        f"`ifndef {guard}",
+        f"`define {guard}",
         "/* verilator lint_off DECLFILENAME */",
         f"module {cell_module_name(storage)} #(parameter [0:0] RESET_VALUE = 1'b0) (",
         "    input  wire clk,",
@@ -113,5 +118,6 @@ def _cell(storage: Storage) -> list[str]:
         f"        else     q <= {storage.verilog_next};",
         "endmodule",
         "/* verilator lint_on DECLFILENAME */",
+        "`endif",
         "",
     ]
