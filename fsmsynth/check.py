@@ -70,6 +70,7 @@ def reachable_states(table: StateTable) -> tuple[str, ...]:
 def check_table(table: StateTable) -> TableReport:
     """Report what ``table`` leaves unspecified.  Cost: O(rows^2 x inputs) in the worst case."""
     reachable = reachable_states(table)
+    reached = set(reachable)
     n = len(table.inputs)
     unspecified = []
     for state in table.states:
@@ -82,7 +83,7 @@ def check_table(table: StateTable) -> TableReport:
     dont_care = tuple((r[0], r[1]) for r in table.rows if r[2] is None)
     return TableReport(
         reachable=reachable,
-        unreachable=tuple(s for s in table.states if s not in reachable),
+        unreachable=tuple(s for s in table.states if s not in reached),
         unspecified=tuple(unspecified),
         dont_care_next=dont_care,
     )

@@ -4,6 +4,7 @@ from __future__ import annotations
 
 import argparse
 import json
+import os
 import sys
 from collections.abc import Sequence
 from pathlib import Path
@@ -13,8 +14,10 @@ from fsmsynth.errors import FsmSynthError, OptionError, VerificationError
 from fsmsynth.files import write_if_changed
 from fsmsynth.formats import read_table
 from fsmsynth.pipeline import UNUSED_POLICIES, Design, synthesize
+from fsmsynth.reduce import StateMinimization, minimize_states
 from fsmsynth.storage import STORAGES
 from fsmsynth.version import __version__
+from fsmsynth.writers.spec_toml import write_spec
 from fsmsynth.writers.testbench import write_testbench
 
 CAUTION = (
@@ -53,10 +56,21 @@ def _parser() -> argparse.ArgumentParser:
                        help="binary, gray, one-hot, or state=code,... (default binary)")
     build.add_argument("--unused", default="dont-care", choices=UNUSED_POLICIES,
                        help="unused state codes: don't cares, or safe (go to reset)")
+    build.add_argument("--no-minimize", action="store_true",
+                       help="keep every state (skip state minimization)")
     build.add_argument("-o", "--out", default="build", help="output folder (default build/)")
     build.add_argument("--testbench", action="store_true",
                        help="also write <name>_tb.v, a self-checking testbench from the table")
     build.add_argument("--json", action="store_true", help="print a JSON report instead of text")
+
+    reduce = sub.add_parser("reduce", help="minimize the states and write the reduced table")
+    reduce.add_argument("spec", help="state table: .toml spec or .csv table")
+    reduce.add_argument("-o", "--out", help="write the reduced spec here (default: print it)")
+    reduce.add_argument("--keep-unreachable", action="store_true",
+                        help="class every state, reachable from reset or not")
+    reduce.add_argument("--time-limit", type=float, default=10.0,
+                        help="seconds for the exact search (default 10)")
+    reduce.add_argument("--json", action="store_true", help="print a JSON report instead of text")
 
     check = sub.add_parser("check", help="validate a state table and report what it leaves open")
     check.add_argument("spec", help="state table: .toml spec or .csv table")
@@ -64,13 +78,29 @@ def _parser() -> argparse.ArgumentParser:
     return parser
 
 
+def _minimization_lines(m: StateMinimization, before: int) -> list[str]:
+    lines = [f"state minimization ({m.method}): {before} -> {len(m.table.states)} states"
+             + ("" if m.proven else " (time limit reached: not proven minimal)")]
+    if m.unreachable:
+        lines.append(f"  unreachable, dropped: {', '.join(m.unreachable)}")
+    for members in m.merged:
+        lines.append(f"  merged: {', '.join(members)}")
+    return lines
+
+
 def _report(design: Design) -> dict[str, object]:
+    m = design.minimization
     return {
         "machine": design.table.name,
         "storage": design.storage,
         "encoding": {"method": design.encoding.method,
-                     "codes": {s: design.encoding.code_string(s) for s in design.table.states}},
+                     "codes": {s: design.encoding.code_string(s)
+                               for s in design.encoded_table.states}},
         "unused": design.unused,
+        "states": {"given": len(design.table.states), "encoded": len(design.encoded_table.states),
+                   "merged": [list(c) for c in m.merged] if m else [],
+                   "unreachable": list(m.unreachable) if m else [],
+                   "proven_minimal": m.proven if m else None},
         "equations": {name: eq.expression for name, eq in design.equations.items()},
         "cost": design.cost.as_dict(),
         "verified": bool(design.verification),
@@ -80,7 +110,8 @@ def _report(design: Design) -> dict[str, object]:
 
 def _build(args: argparse.Namespace) -> int:
     table = read_table(args.spec)
-    design = synthesize(table, args.storage, _encoding_arg(args.encoding), unused=args.unused)
+    design = synthesize(table, args.storage, _encoding_arg(args.encoding), unused=args.unused,
+                        minimize=not args.no_minimize)
     out = Path(args.out)
     files = {out / f"{table.name}.v": design.verilog, out / f"{table.name}.json": design.json}
     if args.testbench:
@@ -91,9 +122,13 @@ def _build(args: argparse.Namespace) -> int:
         report["files"] = written
         print(json.dumps(report, indent=2))
         return 0
-    codes = ", ".join(f"{s}={design.encoding.code_string(s)}" for s in table.states)
-    print(f"{table.name}: {len(table.states)} states, {design.storage.upper()} flip-flops, "
+    encoded = design.encoded_table
+    codes = ", ".join(f"{s}={design.encoding.code_string(s)}" for s in encoded.states)
+    print(f"{table.name}: {len(encoded.states)} states, {design.storage.upper()} flip-flops, "
           f"{design.encoding.method} encoding ({codes})")
+    if design.minimization is not None:
+        for line in _minimization_lines(design.minimization, len(table.states)):
+            print(line)
     print()
     print("Equations:")
     for eq in design.equations.values():
@@ -113,6 +148,34 @@ def _build(args: argparse.Namespace) -> int:
         print(f"{'wrote' if changed else 'unchanged'} {path}")
     print()
     print(CAUTION)
+    return 0
+
+
+def _reduce(args: argparse.Namespace) -> int:
+    table = read_table(args.spec)
+    result = minimize_states(table, reachable_only=not args.keep_unreachable,
+                             time_limit=args.time_limit)
+    text = write_spec(result.table, comment=(
+        f"{table.name}: reduced by fsmsynth from {Path(args.spec).name} "
+        f"({len(table.states)} -> {len(result.table.states)} states)"))
+    changed = write_if_changed(args.out, text) if args.out else False
+    if args.json:
+        print(json.dumps({
+            "machine": table.name, "method": result.method, "proven": result.proven,
+            "states_before": len(table.states), "states_after": len(result.table.states),
+            "classes": {s: sorted(m) for s, m in result.classes.items()},
+            "unreachable": list(result.unreachable), "input_classes": result.input_classes,
+            "file": args.out}, indent=2))
+        return 0
+    for line in _minimization_lines(result, len(table.states)):
+        print(line)
+    for state, members in result.classes.items():
+        print(f"  {state} = {{{', '.join(sorted(members))}}}")
+    if args.out:
+        print(f"{'wrote' if changed else 'unchanged'} {args.out}")
+    else:
+        print()
+        print(text, end="")
     return 0
 
 
@@ -141,10 +204,14 @@ def main(argv: Sequence[str] | None = None) -> int:
     """Run the command line; returns the exit status (0 ok, 2 bad input, 1 failure)."""
     args = _parser().parse_args(argv)
     try:
-        return {"build": _build, "check": _check}[args.command](args)
+        return {"build": _build, "reduce": _reduce, "check": _check}[args.command](args)
     except FsmSynthError as exc:
         print(f"fsmsynth: error: {exc}", file=sys.stderr)
         return 1 if isinstance(exc, VerificationError) else 2
+    except BrokenPipeError:
+        # The reader (``| head``) went away: stop quietly, as command-line tools do.
+        sys.stdout = open(os.devnull, "w")  # noqa: SIM115
+        return 0
 
 
 if __name__ == "__main__":

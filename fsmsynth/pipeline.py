@@ -13,6 +13,7 @@ from fsmsynth.errors import OptionError, VerificationError
 from fsmsynth.excite import LogicFunctions, excite
 from fsmsynth.logic.cover import Cover, minimize_logic
 from fsmsynth.netlist import Netlist, build_netlist
+from fsmsynth.reduce import StateMinimization, minimize_states
 from fsmsynth.storage import Storage, storage_named
 from fsmsynth.table import StateTable
 from fsmsynth.verify import Verification, verify
@@ -29,7 +30,10 @@ class Design:
     Attributes
     ----------
     table:
-        The specification synthesized.
+        The specification as given; the netlist is verified against it.
+    minimization:
+        The state minimization (``None`` when skipped); ``minimization.table`` is the table
+        that was encoded.
     storages:
         Storage kind of each state bit, bit 0 first.
     encoding:
@@ -52,6 +56,7 @@ class Design:
     """
 
     table: StateTable
+    minimization: StateMinimization | None
     storages: tuple[Storage, ...]
     encoding: Encoding
     unused: str
@@ -73,6 +78,16 @@ class Design:
         return write_json_netlist(self.netlist, self.cost.as_dict())
 
     @property
+    def encoded_table(self) -> StateTable:
+        """The table whose states were encoded: the reduced one, or the original."""
+        return self.minimization.table if self.minimization else self.table
+
+    @property
+    def states_removed(self) -> int:
+        """How many states minimization removed (unreachable and merged)."""
+        return len(self.table.states) - len(self.encoded_table.states)
+
+    @property
     def storage(self) -> str:
         """The storage kind name, or ``"mixed"`` when bits differ."""
         kinds = {s.name for s in self.storages}
@@ -80,7 +95,8 @@ class Design:
 
     def header(self) -> str:
         """Comment lines describing how the design was made."""
-        codes = ", ".join(f"{s}={self.encoding.code_string(s)}" for s in self.table.states)
+        codes = ", ".join(f"{s}={self.encoding.code_string(s)}"
+                          for s in self.encoded_table.states)
         return (f"storage: {self.storage}; encoding: {self.encoding.method} ({codes}); "
                 f"unused codes: {self.unused}\n"
                 "Caution: synchronise asynchronous inputs, and verify timing in the target "
@@ -90,7 +106,7 @@ class Design:
 def synthesize(table: StateTable, storage: str | Storage = "d",
                encoding: str | Mapping[str, int | str] = "binary", *,
                unused: str = "dont-care", weights: CostWeights = DEFAULT_WEIGHTS,
-               check: bool = True) -> Design:
+               minimize: bool = True, check: bool = True) -> Design:
     """Synthesize ``table`` into equations and a netlist, and prove the result.
 
     Parameters
@@ -106,6 +122,10 @@ def synthesize(table: StateTable, storage: str | Storage = "d",
         ``"dont-care"`` (cheapest) or ``"safe"`` (every unused code goes to reset in one clock).
     weights:
         Cost weights used to choose between shared and separate covers and for ``cost.total``.
+    minimize:
+        Reduce the states first (:func:`fsmsynth.reduce.minimize_states`, on by default).
+        A given encoding may then name states that were merged away; their codes are
+        ignored.
     check:
         Run :func:`fsmsynth.verify.verify` (on by default).
 
@@ -122,22 +142,26 @@ def synthesize(table: StateTable, storage: str | Storage = "d",
     Examples
     --------
     >>> from fsmsynth import StateTable, synthesize
-    >>> t = StateTable.from_rows(name="count3", inputs=[], outputs=[], reset="a",
-    ...     rows=[("a", "", "b", ""), ("b", "", "c", ""), ("c", "", "a", "")])
+    >>> t = StateTable.from_rows(name="count3", inputs=[], outputs=["last"], reset="a",
+    ...     rows=[("a", "", "b", "0"), ("b", "", "c", "0"), ("c", "", "a", "1")])
     >>> print(synthesize(t, "t").equations["T0"])
     T0 = Q1'
     """
     if unused not in UNUSED_POLICIES:
         raise OptionError(f"unused codes {unused!r}: use one of {', '.join(UNUSED_POLICIES)}")
     kind = storage_named(storage)
-    codes = encode(table, encoding)
+    reduction = minimize_states(table) if minimize else None
+    work = reduction.table if reduction else table
+    if reduction and isinstance(encoding, Mapping):
+        encoding = {s: c for s, c in encoding.items() if s in work.states or s not in table.states}
+    codes = encode(work, encoding)
     storages = (kind,) * codes.width
-    functions = excite(table, codes, storages, unused=unused)
+    functions = excite(work, codes, storages, unused=unused)
     cover = minimize_logic(functions, weights)
     equations = {name: Equation(signal=name, variables=cover.variables, terms=terms)
                  for name, terms in zip(cover.names, cover.terms)}
     netlist = build_netlist(table.name, table.inputs, table.outputs, cover, storages,
-                            codes.codes[table.reset])
+                            codes.codes[work.reset])
     flip_flops: dict[str, int] = {}
     for s in storages:
         flip_flops[s.name] = flip_flops.get(s.name, 0) + 1
@@ -148,6 +172,6 @@ def synthesize(table: StateTable, storage: str | Storage = "d",
         proof = verify(netlist, table, safe_unused=safe)
         if not proof:
             raise VerificationError(f"{table.name}: {proof.summary()}", proof)
-    return Design(table=table, storages=storages, encoding=codes, unused=unused,
-                  functions=functions, cover=cover, equations=equations, netlist=netlist,
-                  cost=cost, verification=proof)
+    return Design(table=table, minimization=reduction, storages=storages, encoding=codes,
+                  unused=unused, functions=functions, cover=cover, equations=equations,
+                  netlist=netlist, cost=cost, verification=proof)

@@ -42,6 +42,8 @@ class StateTable:
     reset: str
     rows: tuple[Row, ...]
     state_outputs: Mapping[str, str] = field(default_factory=lambda: MappingProxyType({}))
+    _by_state: Mapping[str, tuple[int, ...]] = field(
+        default_factory=lambda: MappingProxyType({}), compare=False, repr=False)
 
     @classmethod
     def from_rows(
@@ -116,7 +118,10 @@ class StateTable:
                 f"reset state {reset!r} is unknown; use one of {', '.join(states_t)}", state=reset
             )
         outs = _check_state_outputs(kind, state_outputs, known, len(outputs_t))
-        _check_conflicts(rows_t, outputs_t)
+        by_state: dict[str, list[int]] = {s: [] for s in states_t}
+        for i, row in enumerate(rows_t):
+            by_state[row[0]].append(i)
+        _check_conflicts(rows_t, outputs_t, by_state)
         return cls(
             name=name,
             kind=kind,  # type: ignore[arg-type]
@@ -126,7 +131,26 @@ class StateTable:
             reset=reset,
             rows=rows_t,
             state_outputs=MappingProxyType(outs),
+            _by_state=MappingProxyType({s: tuple(ix) for s, ix in by_state.items()}),
         )
+
+    @classmethod
+    def _derived(cls, base: StateTable, *, rows: Iterable[Row], states: Sequence[str],
+                 reset: str, state_outputs: Mapping[str, str] | None = None) -> StateTable:
+        """A table a stage built from a valid ``base`` (same names and kind), not re-checked.
+
+        Used for results such as a reduced machine, whose rows are copies of validated rows
+        with states renamed; the stage's own tests check that it keeps them valid.
+        """
+        rows_t = tuple(rows)
+        by_state: dict[str, list[int]] = {s: [] for s in states}
+        for i, row in enumerate(rows_t):
+            by_state[row[0]].append(i)
+        assert reset in by_state
+        return cls(name=base.name, kind=base.kind, inputs=base.inputs, outputs=base.outputs,
+                   states=tuple(states), reset=reset, rows=rows_t,
+                   state_outputs=MappingProxyType(dict(state_outputs or {})),
+                   _by_state=MappingProxyType({s: tuple(ix) for s, ix in by_state.items()}))
 
     def __hash__(self) -> int:
         return hash((self.name, self.kind, self.inputs, self.outputs, self.states, self.reset,
@@ -134,7 +158,7 @@ class StateTable:
 
     def rows_of(self, state: str) -> tuple[Row, ...]:
         """The rows whose present state is ``state``, in table order."""
-        return tuple(r for r in self.rows if r[0] == state)
+        return tuple(self.rows[i] for i in self._by_state.get(state, ()))
 
     def output_cube_of(self, state: str) -> str:
         """Moore: the output cube of ``state`` (all don't care when none was given)."""
@@ -234,9 +258,11 @@ def _declared_states(states: Sequence[str] | None, rows: tuple[Row, ...]) -> tup
     for s in result:
         if not isinstance(s, str) or not s or s == "-":
             raise TableError(f"state {s!r} must be a non-empty name other than '-'")
-    dupes = sorted({s for s in result if result.count(s) > 1})
-    if dupes:
-        raise TableError(f"state {dupes[0]!r} is declared twice in states", state=dupes[0])
+    seen: set[str] = set()
+    for s in result:
+        if s in seen:
+            raise TableError(f"state {s!r} is declared twice in states", state=s)
+        seen.add(s)
     return result
 
 
@@ -258,11 +284,9 @@ def _check_state_outputs(kind: str, given: Mapping[str, str] | None, known: set[
     return result
 
 
-def _check_conflicts(rows: tuple[Row, ...], outputs: tuple[str, ...]) -> None:
+def _check_conflicts(rows: tuple[Row, ...], outputs: tuple[str, ...],
+                     by_state: Mapping[str, list[int]]) -> None:
     """Reject two overlapping rows of one state that disagree where both are specified."""
-    by_state: dict[str, list[int]] = {}
-    for i, row in enumerate(rows):
-        by_state.setdefault(row[0], []).append(i)
     for state, indices in by_state.items():
         cubes = [Cube.from_string(rows[i][1]) for i in indices]
         for a in range(len(indices)):

@@ -43,3 +43,64 @@ def table_walk(table: StateTable, inputs: tuple[str, ...]) -> tuple[str, str]:
         assert nxt is not None, "counterexample walks through an unspecified transition"
         state = nxt
     return state, table.lookup(state, inputs[-1])[1]
+
+
+def pair_compatible(table: StateTable, p: str, q: str) -> bool:
+    """By definition: no input sequence applicable to both gives conflicting outputs."""
+    seen, queue = {(p, q)}, deque([(p, q)])
+    while queue:
+        a, b = queue.popleft()
+        for word in words(len(table.inputs)):
+            na, oa = table.lookup(a, word)
+            nb, ob = table.lookup(b, word)
+            if any("-" not in (x, y) and x != y for x, y in zip(oa, ob)):
+                return False
+            if na is not None and nb is not None and (na, nb) not in seen:
+                seen.add((na, nb))
+                queue.append((na, nb))
+    return True
+
+
+def is_closed_cover(table: StateTable, states: tuple[str, ...],
+                    cover: tuple[frozenset[str], ...]) -> bool:
+    if set().union(*cover) != set(states):
+        return False
+    for c in cover:
+        for word in words(len(table.inputs)):
+            nxt = {table.lookup(s, word)[0] for s in c} - {None}
+            if nxt and not any(nxt <= d for d in cover):
+                return False
+    return True
+
+
+def brute_force_minimum_states(table: StateTable, states: tuple[str, ...]) -> int:
+    """Fewest compatibles in a closed cover, by trying every collection in increasing size."""
+    compatible = {(p, q): pair_compatible(table, p, q) for p in states for q in states}
+    sets = [frozenset(c) for k in range(1, len(states) + 1)
+            for c in itertools.combinations(states, k)
+            if all(compatible[(p, q)] for p, q in itertools.combinations(c, 2))]
+    for k in range(1, len(states) + 1):
+        for cover in itertools.combinations(sets, k):
+            if is_closed_cover(table, states, cover):
+                return k
+    raise AssertionError("the singletons always form a closed cover")
+
+
+def realizes(reduced: StateTable, original: StateTable) -> bool:
+    """Wherever the original specifies an output, the reduced machine produces it."""
+    start = (original.reset, reduced.reset)
+    seen, queue = {start}, deque([start])
+    while queue:
+        o, r = queue.popleft()
+        for word in words(len(original.inputs)):
+            on, oo = original.lookup(o, word)
+            rn, ro = reduced.lookup(r, word)
+            if any(x != "-" and x != y for x, y in zip(oo, ro)):
+                return False
+            if on is not None:
+                if rn is None:
+                    return False
+                if (on, rn) not in seen:
+                    seen.add((on, rn))
+                    queue.append((on, rn))
+    return True

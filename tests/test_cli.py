@@ -73,3 +73,27 @@ def test_unknown_encoding_is_a_clear_error(capsys: pytest.CaptureFixture[str]) -
     assert main(["build", LOCKER, "--encoding", "johnson"]) == 2
     assert capsys.readouterr().err == ("fsmsynth: error: unknown encoding 'johnson': use one of "
                                        "binary, gray, one-hot, or a mapping from state to code\n")
+
+
+SORTER = str(EXAMPLES / "conveyor_sorter.toml")
+
+
+def test_reduce_prints_classes_and_writes_a_spec_that_reads_back(
+        tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    out = tmp_path / "reduced.toml"
+    assert main(["reduce", SORTER, "-o", str(out)]) == 0
+    text = capsys.readouterr().out
+    assert "state minimization (hopcroft): 4 -> 2 states" in text
+    assert "merged: wait, scan_good, scan_good2" in text
+    from fsmsynth.formats import read_table
+    reduced = read_table(out)
+    assert reduced.states == ("wait", "scan_bad") and reduced.reset == "wait"
+
+
+def test_build_reports_removed_states_and_can_skip_minimization(
+        tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    main(["build", SORTER, "-o", str(tmp_path), "--json"])
+    report = json.loads(capsys.readouterr().out)
+    assert report["states"]["given"] == 4 and report["states"]["encoded"] == 2
+    main(["build", SORTER, "-o", str(tmp_path), "--no-minimize"])
+    assert "conveyor_sorter: 4 states" in capsys.readouterr().out

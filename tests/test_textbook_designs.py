@@ -8,10 +8,12 @@ from fsmsynth import StateTable, synthesize
 
 
 def counter(bits: int) -> StateTable:
+    """A binary up-counter whose outputs are its count (a Moore machine, no inputs)."""
     n = 1 << bits
     return StateTable.from_rows(
-        name=f"up{bits}", inputs=[], outputs=[], reset="c0",
-        rows=[(f"c{i}", "", f"c{(i + 1) % n}", "") for i in range(n)])
+        name=f"up{bits}", kind="moore", inputs=[], outputs=[f"c{b}" for b in range(bits)],
+        reset="n0", rows=[(f"n{i}", "", f"n{(i + 1) % n}", None) for i in range(n)],
+        state_outputs={f"n{i}": format(i, f"0{bits}b")[::-1] for i in range(n)})
 
 
 Q0, Q1, Q2 = sympy.symbols("Q0 Q1 Q2")
@@ -61,6 +63,6 @@ def test_gray_encoded_counter_changes_one_bit_per_step() -> None:
     # Gray code: consecutive codes differ in exactly one bit (common practice, no source),
     # so a 2-bit Gray counter with T flip-flops toggles one flip-flop per clock.
     design = synthesize(counter(2), "t", "gray")
-    codes = [design.encoding.codes[f"c{i}"] for i in range(4)]
+    codes = [design.encoding.codes[f"n{i}"] for i in range(4)]
     assert codes == [0b00, 0b01, 0b11, 0b10]
     assert [bin(a ^ b).count("1") for a, b in zip(codes, codes[1:] + codes[:1])] == [1] * 4

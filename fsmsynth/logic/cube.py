@@ -10,6 +10,7 @@ from __future__ import annotations
 
 from collections.abc import Iterable, Iterator
 from dataclasses import dataclass
+from functools import lru_cache
 
 
 @dataclass(frozen=True, slots=True, order=True)
@@ -25,16 +26,7 @@ class Cube:
     @classmethod
     def from_string(cls, text: str) -> Cube:
         """Parse ``'01-'`` (variable 0 first). Characters other than 0, 1, - are an error."""
-        care = value = 0
-        for i, ch in enumerate(text):
-            if ch == "1":
-                care |= 1 << i
-                value |= 1 << i
-            elif ch == "0":
-                care |= 1 << i
-            elif ch != "-":
-                raise ValueError(f"cube {text!r}: use only 0, 1 or -")
-        return cls(care=care, value=value)
+        return _parse(text)
 
     @classmethod
     def universe(cls) -> Cube:
@@ -104,6 +96,21 @@ class Cube:
         return self.value
 
 
+@lru_cache(maxsize=65536)
+def _parse(text: str) -> Cube:
+    # Tables repeat the same few cube strings on many rows: parse each once.
+    care = value = 0
+    for i, ch in enumerate(text):
+        if ch == "1":
+            care |= 1 << i
+            value |= 1 << i
+        elif ch == "0":
+            care |= 1 << i
+        elif ch != "-":
+            raise ValueError(f"cube {text!r}: use only 0, 1 or -")
+    return Cube(care=care, value=value)
+
+
 def sharp(a: Cube, b: Cube) -> list[Cube]:
     """The points of ``a`` outside ``b``, as disjoint cubes (disjoint sharp product).
 
@@ -138,7 +145,7 @@ def partition(cubes: Iterable[Cube]) -> list[Cube]:
     produced, never with the size of the space.
     """
     classes = [Cube.universe()]
-    for cube in cubes:
+    for cube in dict.fromkeys(cubes):
         refined: list[Cube] = []
         for cls in classes:
             if cube.contains(cls) or not cube.intersects(cls):
