@@ -1,5 +1,7 @@
 """fsmsynth: from a state table to verified next-state and output logic and a gate netlist."""
 
+from fsmsynth.compare import Comparison, ComparisonRow, compare
+from fsmsynth.convert import StorageConversion, convert_storage
 from fsmsynth.cost import Cost, CostWeights
 from fsmsynth.encode import Encoding, encode
 from fsmsynth.equations import Equation
@@ -11,8 +13,10 @@ from fsmsynth.errors import (
     TableError,
     VerificationError,
 )
+from fsmsynth.logic.sop import SopCover, minimize_sop
 from fsmsynth.netlist import FlipFlop, Gate, Netlist
 from fsmsynth.pipeline import Design, synthesize
+from fsmsynth.reduce import StateMinimization, minimize_states
 from fsmsynth.storage import STORAGES, Storage
 from fsmsynth.table import StateTable
 from fsmsynth.verify import Counterexample, Verification, simulate, verify
@@ -23,7 +27,9 @@ __all__ = [
     "StateTable", "Storage", "STORAGES", "Encoding", "Equation", "Netlist", "Gate", "FlipFlop",
     "Cost", "CostWeights",
     # stages
-    "encode", "synthesize", "Design", "verify", "simulate", "Verification", "Counterexample",
+    "minimize_states", "StateMinimization", "encode", "minimize_sop", "SopCover",
+    "synthesize", "Design", "verify", "simulate", "Verification", "Counterexample",
+    "compare", "Comparison", "ComparisonRow", "convert_storage", "StorageConversion",
     # errors
     "FsmSynthError", "TableError", "SpecFileError", "OptionError", "EncodingError",
     "VerificationError",

@@ -3,6 +3,8 @@
 from __future__ import annotations
 
 import argparse
+import csv
+import io
 import json
 import os
 import sys
@@ -10,9 +12,14 @@ from collections.abc import Sequence
 from pathlib import Path
 
 from fsmsynth.check import check_table
+from fsmsynth.compare import DEFAULT_ENCODINGS, DEFAULT_STORAGES, compare
+from fsmsynth.convert import convert_storage
+from fsmsynth.cost import DEFAULT_WEIGHTS, CostWeights
 from fsmsynth.errors import FsmSynthError, OptionError, VerificationError
 from fsmsynth.files import write_if_changed
 from fsmsynth.formats import read_table
+from fsmsynth.formats.weights_toml import read_weights
+from fsmsynth.logic.cover import METHODS as LOGIC_METHODS
 from fsmsynth.pipeline import UNUSED_POLICIES, Design, synthesize
 from fsmsynth.reduce import StateMinimization, minimize_states
 from fsmsynth.storage import STORAGES
@@ -41,6 +48,21 @@ def _encoding_arg(text: str) -> str | dict[str, str]:
     return mapping
 
 
+def _storage_arg(text: str) -> str | list[str]:
+    """A kind name, ``best``, or one kind per state bit, bit 0 first: ``jk,d,d``."""
+    if "," in text:
+        return [part.strip() for part in text.split(",")]
+    return text
+
+
+def _weights_arg(path: str | None) -> CostWeights:
+    return read_weights(path) if path else DEFAULT_WEIGHTS
+
+
+def _list_arg(text: str) -> list[str]:
+    return [part.strip() for part in text.split(",") if part.strip()]
+
+
 def _parser() -> argparse.ArgumentParser:
     parser = argparse.ArgumentParser(
         prog="fsmsynth",
@@ -50,12 +72,17 @@ def _parser() -> argparse.ArgumentParser:
 
     build = sub.add_parser("build", help="synthesize, verify and write Verilog and JSON")
     build.add_argument("spec", help="state table: .toml spec or .csv table")
-    build.add_argument("--storage", default="d", choices=sorted(STORAGES),
-                       help="flip-flop kind (default d)")
+    build.add_argument("--storage", default="d", type=str,
+                       help=f"flip-flop kind: {', '.join(sorted(STORAGES))}, best (cheapest per "
+                            "bit), or one kind per state bit, bit 0 first (jk,d); default d")
     build.add_argument("--encoding", default="binary", type=str,
                        help="binary, gray, one-hot, or state=code,... (default binary)")
     build.add_argument("--unused", default="dont-care", choices=UNUSED_POLICIES,
                        help="unused state codes: don't cares, or safe (go to reset)")
+    build.add_argument("--logic", default="heuristic", choices=LOGIC_METHODS,
+                       help="two-level minimizer: heuristic (Espresso), exact, or auto "
+                            "(exact up to 10 variables); default heuristic")
+    build.add_argument("--weights", help="cost weights TOML file (see README, Cost)")
     build.add_argument("--no-minimize", action="store_true",
                        help="keep every state (skip state minimization)")
     build.add_argument("-o", "--out", default="build", help="output folder (default build/)")
@@ -71,6 +98,25 @@ def _parser() -> argparse.ArgumentParser:
     reduce.add_argument("--time-limit", type=float, default=10.0,
                         help="seconds for the exact search (default 10)")
     reduce.add_argument("--json", action="store_true", help="print a JSON report instead of text")
+
+    comp = sub.add_parser("compare", help="cost of every storage kind and encoding, best first")
+    comp.add_argument("spec", help="state table: .toml spec or .csv table")
+    comp.add_argument("--storages", type=_list_arg, default=list(DEFAULT_STORAGES),
+                      help=f"comma-separated (default {','.join(DEFAULT_STORAGES)})")
+    comp.add_argument("--encodings", type=_list_arg, default=list(DEFAULT_ENCODINGS),
+                      help=f"comma-separated (default {','.join(DEFAULT_ENCODINGS)})")
+    comp.add_argument("--logic", default="heuristic", choices=LOGIC_METHODS)
+    comp.add_argument("--weights", help="cost weights TOML file (see README, Cost)")
+    comp.add_argument("--jobs", type=int, default=1,
+                      help="run designs on this many worker processes (default 1)")
+    fmt = comp.add_mutually_exclusive_group()
+    fmt.add_argument("--json", action="store_true", help="print JSON")
+    fmt.add_argument("--csv", action="store_true", help="print CSV")
+
+    conv = sub.add_parser("convert", help="logic that makes one flip-flop kind act as another")
+    conv.add_argument("target", help=f"kind to build: {', '.join(sorted(STORAGES))}")
+    conv.add_argument("--using", required=True, help="kind of cell available")
+    conv.add_argument("--json", action="store_true", help="print JSON")
 
     check = sub.add_parser("check", help="validate a state table and report what it leaves open")
     check.add_argument("spec", help="state table: .toml spec or .csv table")
@@ -103,6 +149,8 @@ def _report(design: Design) -> dict[str, object]:
                    "proven_minimal": m.proven if m else None},
         "equations": {name: eq.expression for name, eq in design.equations.items()},
         "cost": design.cost.as_dict(),
+        "logic": {"method": design.cover.method, "proven_minimal": design.cover.proven},
+        "flip_flops": [s.name for s in design.storages],
         "verified": bool(design.verification),
         "verification": design.verification.summary() if design.verification else None,
     }
@@ -110,8 +158,9 @@ def _report(design: Design) -> dict[str, object]:
 
 def _build(args: argparse.Namespace) -> int:
     table = read_table(args.spec)
-    design = synthesize(table, args.storage, _encoding_arg(args.encoding), unused=args.unused,
-                        minimize=not args.no_minimize)
+    design = synthesize(table, _storage_arg(args.storage), _encoding_arg(args.encoding),
+                        unused=args.unused, minimize=not args.no_minimize, logic=args.logic,
+                        weights=_weights_arg(args.weights))
     out = Path(args.out)
     files = {out / f"{table.name}.v": design.verilog, out / f"{table.name}.json": design.json}
     if args.testbench:
@@ -124,7 +173,10 @@ def _build(args: argparse.Namespace) -> int:
         return 0
     encoded = design.encoded_table
     codes = ", ".join(f"{s}={design.encoding.code_string(s)}" for s in encoded.states)
-    print(f"{table.name}: {len(encoded.states)} states, {design.storage.upper()} flip-flops, "
+    kinds = (design.storage.upper() if design.storage != "mixed" else
+             "mixed (" + ", ".join(f"Q{b} {s.name.upper()}" for b, s in
+                                   enumerate(design.storages)) + ")")
+    print(f"{table.name}: {len(encoded.states)} states, {kinds} flip-flops, "
           f"{design.encoding.method} encoding ({codes})")
     if design.minimization is not None:
         for line in _minimization_lines(design.minimization, len(table.states)):
@@ -141,6 +193,9 @@ def _build(args: argparse.Namespace) -> int:
           + f"; gate inputs {c.gate_inputs}")
     print("  flip-flops " + ", ".join(f"{k.upper()} {n}" for k, n in c.flip_flops.items()))
     print(f"  total {c.total:g} (gate inputs + flip-flop weights)")
+    proof = (", proven minimal sums of products" if design.cover.proven
+             else "" if design.cover.method == "heuristic" else ", time limit: not proven minimal")
+    print(f"  two-level minimization: {design.cover.method}{proof}")
     print()
     assert design.verification is not None
     print(design.verification.summary())
@@ -179,6 +234,61 @@ def _reduce(args: argparse.Namespace) -> int:
     return 0
 
 
+def _compare(args: argparse.Namespace) -> int:
+    table = read_table(args.spec)
+    options = dict(storages=args.storages, encodings=args.encodings, logic=args.logic,
+                   weights=_weights_arg(args.weights))
+    if args.jobs > 1:
+        from concurrent.futures import ProcessPoolExecutor
+        with ProcessPoolExecutor(max_workers=args.jobs) as pool:
+            result = compare(table, executor=pool, **options)
+    else:
+        result = compare(table, **options)
+    header = ["rank", "storage", "encoding", "flip_flops", "total", "gate_inputs",
+              "product_terms", "literals", "not", "and", "or", "verified"]
+    records = []
+    for rank, row in enumerate(result.rows, start=1):
+        gates = row.cost["gates"]
+        assert isinstance(gates, dict)
+        records.append([rank, row.storage, row.encoding, " ".join(row.kinds), row.total,
+                        row.cost["gate_inputs"], row.cost["product_terms"], row.cost["literals"],
+                        gates.get("not", 0), gates.get("and", 0), gates.get("or", 0),
+                        row.verified])
+    if args.json:
+        print(json.dumps({"machine": result.machine,
+                          "designs": [dict(zip(header, r)) for r in records]}, indent=2))
+        return 0
+    if args.csv:
+        buffer = io.StringIO()
+        writer = csv.writer(buffer, lineterminator="\n")
+        writer.writerow(header)
+        writer.writerows(records)
+        print(buffer.getvalue(), end="")
+        return 0
+    texts = [[str(x if not isinstance(x, float) else f"{x:g}") for x in r] for r in records]
+    widths = [max(len(h), *(len(t[i]) for t in texts)) for i, h in enumerate(header)]
+    print(f"{result.machine}: {len(records)} designs, cheapest first")
+    for line in [header, *texts]:
+        print("  ".join(cell.ljust(w) for cell, w in zip(line, widths)).rstrip())
+    return 0
+
+
+def _convert(args: argparse.Namespace) -> int:
+    result = convert_storage(args.target, using=args.using)
+    if args.json:
+        print(json.dumps({"target": result.target.name, "using": result.using.name,
+                          "equations": {p: e.expression for p, e in result.equations.items()},
+                          "verified": bool(result.design.verification)}, indent=2))
+        return 0
+    print(f"{result.target.title} from a {result.using.title} "
+          f"({result.target.equation}):")
+    for eq in result.equations.values():
+        print(f"  {eq}")
+    assert result.design.verification is not None
+    print(result.design.verification.summary())
+    return 0
+
+
 def _check(args: argparse.Namespace) -> int:
     table = read_table(args.spec)
     report = check_table(table)
@@ -204,7 +314,9 @@ def main(argv: Sequence[str] | None = None) -> int:
     """Run the command line; returns the exit status (0 ok, 2 bad input, 1 failure)."""
     args = _parser().parse_args(argv)
     try:
-        return {"build": _build, "reduce": _reduce, "check": _check}[args.command](args)
+        commands = {"build": _build, "reduce": _reduce, "compare": _compare,
+                    "convert": _convert, "check": _check}
+        return commands[args.command](args)
     except FsmSynthError as exc:
         print(f"fsmsynth: error: {exc}", file=sys.stderr)
         return 1 if isinstance(exc, VerificationError) else 2

@@ -20,8 +20,8 @@ from __future__ import annotations
 
 from collections.abc import Iterable, Mapping, Sequence
 from dataclasses import dataclass, field
-from types import MappingProxyType
 
+from fsmsynth.frozen import FrozenMap
 from fsmsynth.logic.cube import Cube
 
 GATE_KINDS = ("not", "and", "or")
@@ -43,9 +43,9 @@ class CostWeights:
     """
 
     gate: Mapping[str, float] = field(
-        default_factory=lambda: MappingProxyType({"not": 0.0, "and": 0.0, "or": 0.0}))
+        default_factory=lambda: FrozenMap({"not": 0.0, "and": 0.0, "or": 0.0}))
     gate_input: float = 1.0
-    flip_flop: Mapping[str, float] = field(default_factory=lambda: MappingProxyType({}))
+    flip_flop: Mapping[str, float] = field(default_factory=lambda: FrozenMap({}))
     default_flip_flop: float = 6.0
 
     def flip_flop_weight(self, kind: str) -> float:
@@ -161,8 +161,8 @@ def cost_of(shape: LogicShape, flip_flops: Mapping[str, int],
     return Cost(
         product_terms=sum(1 for p in shape.products if p.literal_count >= 1),
         literals=sum(p.literal_count for p in shape.products),
-        gates=MappingProxyType(gates),
+        gates=FrozenMap(gates),
         gate_inputs=shape.gate_inputs,
-        flip_flops=MappingProxyType(dict(sorted(flip_flops.items()))),
+        flip_flops=FrozenMap(dict(sorted(flip_flops.items()))),
         total=total,
     )

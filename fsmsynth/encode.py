@@ -9,9 +9,9 @@ from __future__ import annotations
 
 from collections.abc import Mapping
 from dataclasses import dataclass
-from types import MappingProxyType
 
 from fsmsynth.errors import EncodingError, OptionError
+from fsmsynth.frozen import FrozenMap
 from fsmsynth.table import StateTable
 
 METHODS = ("binary", "gray", "one-hot")
@@ -86,7 +86,7 @@ def encode(table: StateTable, method: str | Mapping[str, int | str] = "binary") 
         return _given(table, method)
     if method == "one-hot":
         return Encoding(method="one-hot", width=len(table.states),
-                        codes=MappingProxyType({s: 1 << i for i, s in enumerate(table.states)}))
+                        codes=FrozenMap({s: 1 << i for i, s in enumerate(table.states)}))
     if method not in ("binary", "gray"):
         raise OptionError(
             f"unknown encoding {method!r}: use one of {', '.join(METHODS)}, "
@@ -95,7 +95,7 @@ def encode(table: StateTable, method: str | Mapping[str, int | str] = "binary") 
     order = [table.reset] + [s for s in table.states if s != table.reset]
     width = max(1, (len(order) - 1).bit_length())
     gray = method == "gray"
-    return Encoding(method=method, width=width, codes=MappingProxyType(
+    return Encoding(method=method, width=width, codes=FrozenMap(
         {s: (i ^ (i >> 1)) if gray else i for i, s in enumerate(order)}))
 
 
@@ -134,4 +134,4 @@ def _given(table: StateTable, mapping: Mapping[str, int | str]) -> Encoding:
                 f"states {seen[code]!r} and {state!r} both have code {format(code, f'0{width}b')}"
             )
         seen[code] = state
-    return Encoding(method="given", width=width, codes=MappingProxyType(codes))
+    return Encoding(method="given", width=width, codes=FrozenMap(codes))

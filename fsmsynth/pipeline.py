@@ -2,8 +2,8 @@
 
 from __future__ import annotations
 
-from collections.abc import Mapping
-from dataclasses import dataclass
+from collections.abc import Mapping, Sequence
+from dataclasses import dataclass, replace
 from functools import cached_property
 
 from fsmsynth.cost import DEFAULT_WEIGHTS, Cost, CostWeights, cost_of, logic_shape
@@ -14,7 +14,7 @@ from fsmsynth.excite import LogicFunctions, excite
 from fsmsynth.logic.cover import Cover, minimize_logic
 from fsmsynth.netlist import Netlist, build_netlist
 from fsmsynth.reduce import StateMinimization, minimize_states
-from fsmsynth.storage import Storage, storage_named
+from fsmsynth.storage import STORAGES, Storage, storage_named
 from fsmsynth.table import StateTable
 from fsmsynth.verify import Verification, verify
 from fsmsynth.writers.json_netlist import write_json_netlist
@@ -103,10 +103,14 @@ class Design:
                 "technology.")
 
 
-def synthesize(table: StateTable, storage: str | Storage = "d",
+StorageChoice = str | Storage | Sequence[str | Storage] | Mapping[int, str | Storage]
+
+
+def synthesize(table: StateTable, storage: StorageChoice = "d",
                encoding: str | Mapping[str, int | str] = "binary", *,
                unused: str = "dont-care", weights: CostWeights = DEFAULT_WEIGHTS,
-               minimize: bool = True, check: bool = True) -> Design:
+               logic: str = "heuristic", minimize: bool = True,
+               check: bool = True) -> Design:
     """Synthesize ``table`` into equations and a netlist, and prove the result.
 
     Parameters
@@ -114,7 +118,11 @@ def synthesize(table: StateTable, storage: str | Storage = "d",
     table:
         The machine.
     storage:
-        Flip-flop kind for every state bit: ``"d"``, ``"t"``, ``"jk"`` or ``"sr"``.
+        Flip-flop kind for every state bit: ``"d"``, ``"t"``, ``"jk"``, ``"sr"`` or ``"de"``
+        (D with clock enable); a sequence or a mapping giving the kind of each state bit
+        (bit 0 first); or ``"best"``: for the chosen encoding each bit's excitation is
+        independent, so each bit gets the kind whose logic is cheapest, and the result is
+        never costlier than any single kind for all bits.
     encoding:
         ``"binary"``, ``"gray"``, ``"one-hot"`` or a mapping from state to code
         (see :func:`fsmsynth.encode.encode`).
@@ -122,6 +130,10 @@ def synthesize(table: StateTable, storage: str | Storage = "d",
         ``"dont-care"`` (cheapest) or ``"safe"`` (every unused code goes to reset in one clock).
     weights:
         Cost weights used to choose between shared and separate covers and for ``cost.total``.
+    logic:
+        Two-level minimizer: ``"heuristic"`` (Espresso), ``"exact"`` (proven minimum
+        covers), or ``"auto"`` (exact up to 10 variables, Espresso beyond); the chosen
+        one and whether it proved minimality are on ``design.cover``.
     minimize:
         Reduce the states first (:func:`fsmsynth.reduce.minimize_states`, on by default).
         A given encoding may then name states that were merged away; their codes are
@@ -149,15 +161,64 @@ def synthesize(table: StateTable, storage: str | Storage = "d",
     """
     if unused not in UNUSED_POLICIES:
         raise OptionError(f"unused codes {unused!r}: use one of {', '.join(UNUSED_POLICIES)}")
-    kind = storage_named(storage)
     reduction = minimize_states(table) if minimize else None
     work = reduction.table if reduction else table
     if reduction and isinstance(encoding, Mapping):
         encoding = {s: c for s, c in encoding.items() if s in work.states or s not in table.states}
     codes = encode(work, encoding)
-    storages = (kind,) * codes.width
+    if storage == "best":
+        candidates = [(k,) * codes.width for k in STORAGES.values()]
+        candidates.append(_cheapest_per_bit(work, codes, unused, weights, logic))
+        designs = [_build(table, reduction, work, codes, c, unused, weights, logic)
+                   for c in dict.fromkeys(candidates)]
+        chosen = min(designs, key=lambda d: (d.cost.total, d.cost.gate_inputs))
+    else:
+        chosen = _build(table, reduction, work, codes, _per_bit(storage, codes.width), unused,
+                        weights, logic)
+    return _proved(chosen) if check else chosen
+
+
+def _per_bit(storage: StorageChoice, width: int) -> tuple[Storage, ...]:
+    if isinstance(storage, (str, Storage)):
+        return (storage_named(storage),) * width
+    if isinstance(storage, Mapping):
+        missing = [b for b in range(width) if b not in storage]
+        if missing or set(storage) - set(range(width)):
+            raise OptionError(f"storage per bit: give a kind for each of bits 0..{width - 1}")
+        return tuple(storage_named(storage[b]) for b in range(width))
+    kinds = tuple(storage_named(s) for s in storage)
+    if len(kinds) != width:
+        raise OptionError(f"storage per bit: {len(kinds)} kinds given for {width} state bits")
+    return kinds
+
+
+def _cheapest_per_bit(table: StateTable, codes: Encoding, unused: str, weights: CostWeights,
+                      logic: str) -> tuple[Storage, ...]:
+    """For each state bit, the kind whose own pin logic (minimized alone) costs least."""
+    choice = []
+    for bit in range(codes.width):
+        best: tuple[float, str] | None = None
+        for kind in STORAGES.values():
+            functions = excite(table, codes, (kind,) * codes.width, unused=unused)
+            pins = {f"{p}{bit}" for p in kind.pins}
+            own = LogicFunctions(
+                variables=functions.variables,
+                functions=tuple(f for f in functions.functions if f.name in pins),
+                exclusive=tuple(x for x in functions.exclusive if x[0] in pins))
+            shape = logic_shape(minimize_logic(own, weights, logic).terms)
+            price = cost_of(shape, {kind.name: 1}, weights).total
+            if best is None or price < best[0]:
+                best = (price, kind.name)
+        assert best is not None
+        choice.append(STORAGES[best[1]])
+    return tuple(choice)
+
+
+def _build(table: StateTable, reduction: StateMinimization | None, work: StateTable,
+           codes: Encoding, storages: tuple[Storage, ...], unused: str, weights: CostWeights,
+           logic: str) -> Design:
     functions = excite(work, codes, storages, unused=unused)
-    cover = minimize_logic(functions, weights)
+    cover = minimize_logic(functions, weights, logic)
     equations = {name: Equation(signal=name, variables=cover.variables, terms=terms)
                  for name, terms in zip(cover.names, cover.terms)}
     netlist = build_netlist(table.name, table.inputs, table.outputs, cover, storages,
@@ -166,12 +227,15 @@ def synthesize(table: StateTable, storage: str | Storage = "d",
     for s in storages:
         flip_flops[s.name] = flip_flops.get(s.name, 0) + 1
     cost = cost_of(logic_shape(cover.terms), flip_flops, weights)
-    proof = None
-    if check:
-        safe = codes.unused_codes() if unused == "safe" else ()
-        proof = verify(netlist, table, safe_unused=safe)
-        if not proof:
-            raise VerificationError(f"{table.name}: {proof.summary()}", proof)
     return Design(table=table, minimization=reduction, storages=storages, encoding=codes,
                   unused=unused, functions=functions, cover=cover, equations=equations,
-                  netlist=netlist, cost=cost, verification=proof)
+                  netlist=netlist, cost=cost, verification=None)
+
+
+def _proved(design: Design) -> Design:
+    """The design with its verification, or VerificationError with the counterexample."""
+    safe = design.encoding.unused_codes() if design.unused == "safe" else ()
+    proof = verify(design.netlist, design.table, safe_unused=safe)
+    if not proof:
+        raise VerificationError(f"{design.table.name}: {proof.summary()}", proof)
+    return replace(design, verification=proof)

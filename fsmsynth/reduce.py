@@ -24,9 +24,9 @@ import time
 from collections import deque
 from collections.abc import Iterator, Mapping, Sequence
 from dataclasses import dataclass
-from types import MappingProxyType
 
 from fsmsynth.check import reachable_states
+from fsmsynth.frozen import FrozenMap
 from fsmsynth.logic.cube import Cube, partition
 from fsmsynth.table import StateTable
 
@@ -300,7 +300,7 @@ def _from_partition(table: StateTable, beh: _Behaviour, groups: list[frozenset[i
     reduced = StateTable._derived(table, rows=rows, reset=names[reset_group],
                                   states=[names[g] for g in order], state_outputs=state_outputs)
     classes = {names[g]: frozenset(beh.states[i] for i in groups[g]) for g in order}
-    return StateMinimization(table=reduced, classes=MappingProxyType(classes), proven=True,
+    return StateMinimization(table=reduced, classes=FrozenMap(classes), proven=True,
                              method="hopcroft", unreachable=unreachable,
                              input_classes=len(beh.classes))
 
@@ -541,7 +541,7 @@ def _from_cover(table: StateTable, beh: _Behaviour, cover: list[int], proven: bo
         reset=names[reset_group], states=[names[g] for g in order],
         state_outputs=state_outputs if table.kind == "moore" else None)
     classes = {names[g]: frozenset(beh.states[i] for i in groups[g]) for g in order}
-    return StateMinimization(table=reduced, classes=MappingProxyType(classes), proven=proven,
+    return StateMinimization(table=reduced, classes=FrozenMap(classes), proven=proven,
                              method="closed cover", unreachable=unreachable,
                              input_classes=len(beh.classes))
 

@@ -10,7 +10,8 @@ References
 ----------
 Mano, M. M. and Ciletti, M. D., *Digital Design*, 5th ed., Pearson, 2013: section 5.4
 (characteristic tables and equations of D, JK and T flip-flops) and section 5.8 (excitation
-tables).
+tables).  The D flip-flop with clock enable is common practice in FPGA and standard-cell
+libraries (no source): it loads D on an edge where E = 1 and holds otherwise.
 """
 
 from __future__ import annotations
@@ -137,12 +138,23 @@ SR = Storage(
     exclusive=(("S", "R"),),
 )
 
-STORAGES: dict[str, Storage] = {s.name: s for s in (D, T, JK, SR)}
+DE = Storage(
+    name="de",
+    title="D flip-flop with clock enable",
+    pins=("D", "E"),
+    characteristic=_table({"00": (0, 1), "10": (0, 1), "01": (0, 0), "11": (1, 1)}),
+    # Holding is done by disabling the clock enable; every change loads D.
+    excitation=((0, 0, "-0"), (0, 1, "11"), (1, 0, "01"), (1, 1, "-0")),
+    equation="Q+ = E D + E' Q",
+    verilog_next="(e & d) | (~e & q)",
+)
+
+STORAGES: dict[str, Storage] = {s.name: s for s in (D, T, JK, SR, DE)}
 """Every storage kind by name."""
 
 
 def storage_named(name: str | Storage) -> Storage:
-    """The storage kind called ``name`` (``"d"``, ``"t"``, ``"jk"``, ``"sr"``)."""
+    """The storage kind called ``name`` (``"d"``, ``"t"``, ``"jk"``, ``"sr"``, ``"de"``)."""
     if isinstance(name, Storage):
         return name
     key = str(name).lower()

@@ -9,10 +9,10 @@ from __future__ import annotations
 
 from collections.abc import Iterable, Mapping, Sequence
 from dataclasses import dataclass, field
-from types import MappingProxyType
 from typing import Literal
 
 from fsmsynth.errors import TableError
+from fsmsynth.frozen import FrozenMap
 from fsmsynth.logic.cube import Cube
 from fsmsynth.names import name_problem
 
@@ -41,9 +41,9 @@ class StateTable:
     states: tuple[str, ...]
     reset: str
     rows: tuple[Row, ...]
-    state_outputs: Mapping[str, str] = field(default_factory=lambda: MappingProxyType({}))
+    state_outputs: Mapping[str, str] = field(default_factory=lambda: FrozenMap({}))
     _by_state: Mapping[str, tuple[int, ...]] = field(
-        default_factory=lambda: MappingProxyType({}), compare=False, repr=False)
+        default_factory=lambda: FrozenMap({}), compare=False, repr=False)
 
     @classmethod
     def from_rows(
@@ -130,8 +130,8 @@ class StateTable:
             states=states_t,
             reset=reset,
             rows=rows_t,
-            state_outputs=MappingProxyType(outs),
-            _by_state=MappingProxyType({s: tuple(ix) for s, ix in by_state.items()}),
+            state_outputs=FrozenMap(outs),
+            _by_state=FrozenMap({s: tuple(ix) for s, ix in by_state.items()}),
         )
 
     @classmethod
@@ -149,12 +149,8 @@ class StateTable:
         assert reset in by_state
         return cls(name=base.name, kind=base.kind, inputs=base.inputs, outputs=base.outputs,
                    states=tuple(states), reset=reset, rows=rows_t,
-                   state_outputs=MappingProxyType(dict(state_outputs or {})),
-                   _by_state=MappingProxyType({s: tuple(ix) for s, ix in by_state.items()}))
-
-    def __hash__(self) -> int:
-        return hash((self.name, self.kind, self.inputs, self.outputs, self.states, self.reset,
-                     self.rows, tuple(sorted(self.state_outputs.items()))))
+                   state_outputs=FrozenMap(dict(state_outputs or {})),
+                   _by_state=FrozenMap({s: tuple(ix) for s, ix in by_state.items()}))
 
     def rows_of(self, state: str) -> tuple[Row, ...]:
         """The rows whose present state is ``state``, in table order."""

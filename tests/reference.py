@@ -6,6 +6,8 @@ import itertools
 from collections import deque
 
 from fsmsynth import Netlist, StateTable, simulate
+from fsmsynth.logic.cube import Cube
+from fsmsynth.logic.exact import points_of
 
 
 def words(n: int) -> list[str]:
@@ -104,3 +106,27 @@ def realizes(reduced: StateTable, original: StateTable) -> bool:
                     seen.add((on, rn))
                     queue.append((on, rn))
     return True
+
+
+def brute_force_minimum(n: int, on: set[int], dc: set[int]) -> tuple[int, int]:
+    """(terms, literals) of the cheapest single-output cover by trying every set of cubes.
+
+    3**n cubes, so n <= 4.
+    """
+    care = on | dc
+    cubes = []
+    for text in itertools.product("01-", repeat=n):
+        c = Cube.from_string("".join(text))
+        if points_of([c], n) <= care:
+            cubes.append(c)
+    if not on:
+        return 0, 0
+    for k in range(1, len(cubes) + 1):
+        best = None
+        for combo in itertools.combinations(cubes, k):
+            if points_of(combo, n) >= on:
+                lits = sum(c.literal_count for c in combo)
+                best = lits if best is None else min(best, lits)
+        if best is not None:
+            return k, best
+    raise AssertionError("unreachable: the on-set's minterms always cover it")

@@ -13,9 +13,15 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 
 from fsmsynth.cost import DEFAULT_WEIGHTS, CostWeights, logic_shape, normal_terms, weigh
+from fsmsynth.errors import OptionError
 from fsmsynth.excite import Function, LogicFunctions
 from fsmsynth.logic.cube import Cube
 from fsmsynth.logic.espresso import espresso_cover
+from fsmsynth.logic.exact import exact_cover, points_of
+
+METHODS = ("heuristic", "exact", "auto")
+EXACT_AUTO_LIMIT = 10
+"""``logic="auto"`` runs the exact minimizer up to this many variables, Espresso beyond."""
 
 
 @dataclass(frozen=True, slots=True)
@@ -32,13 +38,18 @@ class Cover:
         For each function its product terms (``()`` is the constant 0, a lone universe
         cube the constant 1).
     method:
-        Which minimizer produced the cover.
+        Which minimizer produced the cover: ``"heuristic"`` (Espresso) or ``"exact"``.
+    proven:
+        For ``"exact"``: every minimization finished within its time limit, so each
+        function's cover is a proven minimum sum of products (fewest terms, then literals),
+        alone or as part of the shared multi-output minimum, whichever the gate cost chose.
     """
 
     variables: tuple[str, ...]
     names: tuple[str, ...]
     terms: tuple[tuple[Cube, ...], ...]
-    method: str = "espresso"
+    method: str = "heuristic"
+    proven: bool = False
 
     def of(self, name: str) -> tuple[Cube, ...]:
         """The terms of function ``name``."""
@@ -76,7 +87,29 @@ def _improve(start: list[tuple[Cube, ...]], options: Sequence[Sequence[tuple[Cub
     return current
 
 
-def _separate(terms: list[tuple[Cube, ...]], functions: LogicFunctions, n: int,
+class _Engine:
+    """One two-level minimizer behind a common call; remembers whether all runs were proven."""
+
+    def __init__(self, method: str, n: int, time_limit: float) -> None:
+        self.exact = method == "exact"
+        self.n = n
+        self.time_limit = time_limit
+        self.proven = self.exact
+
+    def __call__(self, on_sets: Sequence[Sequence[Cube]],
+                 off_sets: Sequence[Sequence[Cube]]) -> list[tuple[Cube, ...]]:
+        if not self.exact:
+            return espresso_cover(self.n, on_sets, off_sets)
+        everything = set(range(1 << self.n))
+        ons = [points_of(on, self.n) for on in on_sets]
+        offs = [points_of(off, self.n) for off in off_sets]
+        result = exact_cover(self.n, ons, [everything - a - b for a, b in zip(ons, offs)],
+                             time_limit=self.time_limit)
+        self.proven = self.proven and result.proven
+        return list(result.terms)
+
+
+def _separate(terms: list[tuple[Cube, ...]], functions: LogicFunctions, engine: _Engine,
               weights: CostWeights) -> list[tuple[Cube, ...]]:
     """Make every exclusive pair (S and R of one flip-flop) disjoint.
 
@@ -93,36 +126,51 @@ def _separate(terms: list[tuple[Cube, ...]], functions: LogicFunctions, n: int,
         trials = []
         for keep, redo in ((ia, ib), (ib, ia)):
             f = functions.functions[redo]
-            (new,) = espresso_cover(n, [f.on], [f.off + terms[keep]])
+            (new,) = engine([f.on], [f.off + terms[keep]])
             trial = terms[:redo] + [new] + terms[redo + 1:]
             trials.append((_logic_weight(trial, weights), trial))
         terms = min(trials, key=lambda t: t[0])[1]
     return terms
 
 
-def minimize_logic(functions: LogicFunctions,
-                   weights: CostWeights = DEFAULT_WEIGHTS) -> Cover:
+def minimize_logic(functions: LogicFunctions, weights: CostWeights = DEFAULT_WEIGHTS,
+                   method: str = "heuristic", *, time_limit: float = 10.0) -> Cover:
     """Two-level covers of all functions, with shared product terms where sharing pays.
 
-    Runs Espresso on all functions together and on each alone, then chooses per function
-    between the two by the gate cost of the whole design (greedy, from both starting points),
-    and finally makes exclusive pin pairs disjoint.  Every returned cover is 1 on its
+    Minimizes all functions together and each alone, then chooses per function between the
+    two by the gate cost of the whole design (greedy, from both starting points), and
+    finally makes exclusive pin pairs disjoint.  Every returned cover is 1 on its
     function's on-set and 0 on its off-set.
+
+    Parameters
+    ----------
+    method:
+        ``"heuristic"`` (Espresso), ``"exact"`` (all primes and a minimum cover, see
+        :mod:`fsmsynth.logic.exact`), or ``"auto"`` (exact up to
+        :data:`EXACT_AUTO_LIMIT` variables, Espresso beyond).
+    time_limit:
+        Seconds for each exact cover.
 
     References
     ----------
     Brayton, R. K. et al., *Logic Minimization Algorithms for VLSI Synthesis*, Kluwer, 1984
     (Espresso, multi-output minimization).
     """
+    if method not in METHODS:
+        raise OptionError(f"unknown logic minimizer {method!r}: use one of {', '.join(METHODS)}")
     n = len(functions.variables)
+    if method == "auto":
+        method = "exact" if n <= EXACT_AUTO_LIMIT else "heuristic"
+    engine = _Engine(method, n, time_limit)
     fs: tuple[Function, ...] = functions.functions
-    joint = [normal_terms(t) for t in espresso_cover(n, [f.on for f in fs], [f.off for f in fs])]
-    alone = [normal_terms(espresso_cover(n, [f.on], [f.off])[0]) for f in fs]
+    joint = [normal_terms(t) for t in engine([f.on for f in fs], [f.off for f in fs])]
+    alone = [normal_terms(engine([f.on], [f.off])[0]) for f in fs]
     options = [(joint[i], alone[i]) for i in range(len(fs))]
     candidates = [_improve(joint, options, weights), _improve(alone, options, weights)]
     chosen = min(candidates, key=lambda c: _logic_weight(c, weights))
-    chosen = _separate(chosen, functions, n, weights)
+    chosen = _separate(chosen, functions, engine, weights)
     return Cover(variables=functions.variables, names=tuple(f.name for f in fs),
-                 terms=tuple(normal_terms(t) for t in chosen))
+                 terms=tuple(normal_terms(t) for t in chosen), method=method,
+                 proven=engine.proven)
 
 

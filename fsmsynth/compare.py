@@ -1,0 +1,93 @@
+"""Compare storage kinds and encodings of one machine by the cost of the verified design."""
+
+from __future__ import annotations
+
+from collections.abc import Mapping, Sequence
+from concurrent.futures import Executor
+from dataclasses import dataclass
+
+from fsmsynth.cost import DEFAULT_WEIGHTS, CostWeights
+from fsmsynth.formats.spec_toml import parse_spec
+from fsmsynth.pipeline import synthesize
+from fsmsynth.storage import STORAGES
+from fsmsynth.table import StateTable
+from fsmsynth.writers.spec_toml import write_spec
+
+DEFAULT_ENCODINGS = ("binary", "gray", "one-hot")
+DEFAULT_STORAGES = (*sorted(STORAGES), "best")
+
+
+@dataclass(frozen=True, slots=True)
+class ComparisonRow:
+    """One (storage, encoding) design and its cost.
+
+    ``storage`` is the kind asked for (``"best"`` included); ``kinds`` the kind of each
+    state bit that resulted.  ``cost`` is :meth:`fsmsynth.cost.Cost.as_dict` data.
+    """
+
+    storage: str
+    encoding: str
+    kinds: tuple[str, ...]
+    cost: Mapping[str, object]
+    verified: bool
+    logic: str
+    proven: bool
+
+    @property
+    def total(self) -> float:
+        """The ranking number."""
+        return float(self.cost["total"])  # type: ignore[arg-type]
+
+
+@dataclass(frozen=True, slots=True)
+class Comparison:
+    """Designs of one machine, cheapest first (ties: fewer gate inputs, then by name)."""
+
+    machine: str
+    rows: tuple[ComparisonRow, ...]
+
+    @property
+    def best(self) -> ComparisonRow:
+        """The cheapest design."""
+        return self.rows[0]
+
+
+def _one(spec: str, storage: str, encoding: str, weights: CostWeights, logic: str,
+         minimize: bool, unused: str) -> ComparisonRow:
+    """Synthesize one combination; takes spec text so that it pickles for process pools."""
+    design = synthesize(parse_spec(spec), storage, encoding, weights=weights, logic=logic,
+                        minimize=minimize, unused=unused)
+    return ComparisonRow(storage=storage, encoding=encoding,
+                         kinds=tuple(s.name for s in design.storages),
+                         cost=design.cost.as_dict(), verified=bool(design.verification),
+                         logic=design.cover.method, proven=design.cover.proven)
+
+
+def compare(table: StateTable, storages: Sequence[str] = DEFAULT_STORAGES,
+            encodings: Sequence[str] = DEFAULT_ENCODINGS, *, executor: Executor | None = None,
+            weights: CostWeights = DEFAULT_WEIGHTS, logic: str = "heuristic",
+            minimize: bool = True, unused: str = "dont-care") -> Comparison:
+    """Synthesize and verify every (storage, encoding) pair and rank them by ``cost.total``.
+
+    Parameters
+    ----------
+    storages, encodings:
+        What to try; storage ``"best"`` is the per-bit choice of :func:`synthesize`.
+    executor:
+        A :class:`concurrent.futures.Executor` (a process pool, or a cluster executor with
+        that interface) to run the designs on; by default they run here, one by one.
+    weights, logic, minimize, unused:
+        As for :func:`fsmsynth.synthesize`.
+    """
+    spec = write_spec(table)
+    jobs = [(s, e) for s in storages for e in encodings]
+    if executor is None:
+        rows = [_one(spec, s, e, weights, logic, minimize, unused) for s, e in jobs]
+    else:
+        futures = [executor.submit(_one, spec, s, e, weights, logic, minimize, unused)
+                   for s, e in jobs]
+        rows = [f.result() for f in futures]
+    order = {(s, e): i for i, (s, e) in enumerate(jobs)}
+    ranked = sorted(rows, key=lambda r: (r.total, r.cost["gate_inputs"],
+                                         order[(r.storage, r.encoding)]))
+    return Comparison(machine=table.name, rows=tuple(ranked))

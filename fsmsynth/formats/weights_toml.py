@@ -1,0 +1,65 @@
+"""Read cost weights from TOML (see README, "Cost").
+
+```toml
+gate_input = 1.0          # weight of each gate input
+default_flip_flop = 6.0   # flip-flop kinds not listed below
+[gate]                    # weight of each gate, by kind
+not = 0.0
+and = 0.0
+or = 0.0
+[flip_flop]               # weight of each flip-flop, by storage kind
+jk = 9.0
+```
+"""
+
+from __future__ import annotations
+
+import tomllib
+from pathlib import Path
+
+from fsmsynth.cost import GATE_KINDS, CostWeights
+from fsmsynth.errors import SpecFileError
+from fsmsynth.frozen import FrozenMap
+from fsmsynth.storage import STORAGES
+
+
+def read_weights(path: str | Path) -> CostWeights:
+    """Cost weights from a TOML file; every key is optional."""
+    p = Path(path)
+    try:
+        data = tomllib.loads(p.read_text(encoding="utf-8"))
+    except OSError as exc:
+        raise SpecFileError(f"cannot read the file: {exc.strerror}", path=str(p)) from None
+    except tomllib.TOMLDecodeError as exc:
+        raise SpecFileError(f"not valid TOML: {exc}", path=str(p)) from None
+    allowed = {"gate_input", "default_flip_flop", "gate", "flip_flop"}
+    for key in data:
+        if key not in allowed:
+            raise SpecFileError(f"unknown key {key!r}: use {', '.join(sorted(allowed))}",
+                                path=str(p))
+
+    def number(value: object, where: str) -> float:
+        if isinstance(value, bool) or not isinstance(value, (int, float)) or value < 0:
+            raise SpecFileError(f"{where} must be a number >= 0, not {value!r}", path=str(p))
+        return float(value)
+
+    def table(key: str, names: tuple[str, ...] | list[str]) -> dict[str, float]:
+        raw = data.get(key, {})
+        if not isinstance(raw, dict):
+            raise SpecFileError(f"[{key}] must be a table", path=str(p))
+        for name in raw:
+            if name not in names:
+                raise SpecFileError(f"[{key}] {name!r}: use one of {', '.join(names)}",
+                                    path=str(p))
+        return {n: number(v, f"[{key}] {n}") for n, v in raw.items()}
+
+    defaults = CostWeights()
+    gates = dict(defaults.gate)
+    gates.update(table("gate", GATE_KINDS))
+    return CostWeights(
+        gate=FrozenMap(gates),
+        gate_input=number(data.get("gate_input", defaults.gate_input), "gate_input"),
+        flip_flop=FrozenMap(table("flip_flop", sorted(STORAGES))),
+        default_flip_flop=number(data.get("default_flip_flop", defaults.default_flip_flop),
+                                 "default_flip_flop"),
+    )

@@ -1,0 +1,160 @@
+"""Two-level minimization of a function given by minterms: the designer's truth-table entry.
+
+Minterm numbers follow the usual truth-table convention: the first variable is the most
+significant bit (with three variables a, b, c, minterm 6 is a = 1, b = 1, c = 0).
+"""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+from dataclasses import dataclass
+
+import sympy
+
+from fsmsynth.errors import OptionError
+from fsmsynth.logic.cube import Cube
+from fsmsynth.logic.espresso import espresso_cover
+from fsmsynth.logic.exact import ExactCover, exact_cover, petrick_cover
+
+METHODS = ("exact", "heuristic", "petrick")
+
+
+@dataclass(frozen=True, slots=True)
+class SopCover:
+    """A minimized sum of products (one or several outputs sharing terms).
+
+    Attributes
+    ----------
+    n_inputs:
+        Number of variables.
+    terms:
+        The distinct product terms, each a string with one ``0``/``1``/``-`` per variable,
+        first variable first (``"1-0"`` is ``a c'``).
+    outputs:
+        For each term, the outputs whose sum uses it.
+    literals:
+        Literals in the distinct terms.
+    proven:
+        Whether the term count is proven minimal (always False for the heuristic).
+    lower_bound:
+        Proven lower bound on the number of terms.
+    method:
+        ``"exact"``, ``"petrick"`` or ``"heuristic"`` (Espresso).
+    """
+
+    n_inputs: int
+    terms: tuple[str, ...]
+    outputs: tuple[tuple[int, ...], ...]
+    literals: int
+    proven: bool
+    lower_bound: int
+    method: str
+
+    def output_terms(self, output: int = 0) -> tuple[str, ...]:
+        """The terms of one output."""
+        return tuple(t for t, outs in zip(self.terms, self.outputs) if output in outs)
+
+    def expression(self, names: Sequence[str] | None = None, output: int = 0) -> str:
+        """``"a c' + b"`` style text of one output."""
+        names = list(names or _default_names(self.n_inputs))
+        terms = self.output_terms(output)
+        if not terms:
+            return "0"
+        if any(set(t) == {"-"} or t == "" for t in terms):
+            return "1"
+        return " + ".join(" ".join(names[i] + ("" if ch == "1" else "'")
+                                   for i, ch in enumerate(t) if ch != "-") for t in terms)
+
+    def to_sympy(self, names: Sequence[str] | None = None,
+                 output: int = 0) -> sympy.logic.boolalg.Boolean:
+        """One output as a sympy Boolean expression."""
+        syms = [sympy.Symbol(n) for n in (names or _default_names(self.n_inputs))]
+        return sympy.Or(*[sympy.And(*[syms[i] if ch == "1" else sympy.Not(syms[i])
+                                      for i, ch in enumerate(t) if ch != "-"])
+                          for t in self.output_terms(output)])
+
+
+def _default_names(n: int) -> list[str]:
+    return [chr(ord("a") + i) for i in range(n)] if n <= 26 else [f"x{i}" for i in range(n)]
+
+
+def _to_point(minterm: int, n: int) -> int:
+    """Truth-table minterm number (first variable most significant) to bit i = variable i."""
+    return sum(1 << i for i in range(n) if minterm >> (n - 1 - i) & 1)
+
+
+def minimize_sop(n_inputs: int, on: Sequence[int] | Sequence[Sequence[int]],
+                 dc: Sequence[int] | Sequence[Sequence[int]] = (), method: str = "exact",
+                 *, time_limit: float = 10.0) -> SopCover:
+    """Minimize a single- or multi-output function given by minterm numbers.
+
+    Parameters
+    ----------
+    n_inputs:
+        Number of variables (minterms run from 0 to ``2**n_inputs - 1``).
+    on:
+        Minterms where the function is 1; for several outputs, one list per output.
+    dc:
+        Don't-care minterms, in the same shape as ``on``.
+    method:
+        ``"exact"`` (all primes, minimum cover by integer programming), ``"petrick"``
+        (Petrick's method, small functions only) or ``"heuristic"`` (Espresso).
+    time_limit:
+        Seconds for the exact cover; past it the best found is returned with
+        ``proven=False``.
+
+    Examples
+    --------
+    >>> r = minimize_sop(3, on=[0, 1, 2, 5, 6, 7])
+    >>> len(r.terms), r.literals, r.proven
+    (3, 6, True)
+    >>> minimize_sop(4, on=[1, 3, 7, 11, 15], dc=[0, 2, 5]).expression(["w", "x", "y", "z"])
+    "w' z + y z"
+    """
+    if method not in METHODS:
+        raise OptionError(f"unknown method {method!r}: use one of {', '.join(METHODS)}")
+    multi = bool(on) and not isinstance(on[0], int)
+    on_lists: list[list[int]] = [list(x) for x in on] if multi else [list(on)]  # type: ignore[arg-type]
+    dc_lists: list[list[int]]
+    if multi:
+        dc_lists = [list(x) for x in dc] if dc else [[] for _ in on_lists]  # type: ignore[arg-type]
+    else:
+        dc_lists = [list(dc)]  # type: ignore[arg-type]
+    if len(dc_lists) != len(on_lists):
+        raise OptionError("give one don't-care list per output")
+    top = 1 << n_inputs
+    for lists in (on_lists, dc_lists):
+        for f, ms in enumerate(lists):
+            for m in ms:
+                if not isinstance(m, int) or not 0 <= m < top:
+                    raise OptionError(f"minterm {m!r} of output {f}: use 0 .. {top - 1}")
+    on_sets = [{_to_point(m, n_inputs) for m in ms} for ms in on_lists]
+    dc_sets = [{_to_point(m, n_inputs) for m in ms} - on_sets[f] for f, ms in enumerate(dc_lists)]
+    if method == "heuristic":
+        result = _heuristic(n_inputs, on_sets, dc_sets)
+    elif method == "petrick":
+        result = petrick_cover(n_inputs, on_sets, dc_sets)
+    else:
+        result = exact_cover(n_inputs, on_sets, dc_sets, time_limit=time_limit)
+    products = result.products
+    return SopCover(
+        n_inputs=n_inputs,
+        terms=tuple(p.to_string(n_inputs) for p in products),
+        outputs=tuple(tuple(f for f, ts in enumerate(result.terms) if p in ts) for p in products),
+        literals=sum(p.literal_count for p in products),
+        proven=result.proven,
+        lower_bound=result.lower_bound,
+        method=method,
+    )
+
+
+def _heuristic(n: int, on_sets: list[set[int]], dc_sets: list[set[int]]) -> ExactCover:
+    full = (1 << n) - 1
+    on_cubes = [[Cube.minterm(m, n) for m in sorted(s)] for s in on_sets]
+    off_cubes = [[Cube.minterm(m, n) for m in range(full + 1) if m not in on and m not in dc]
+                 for on, dc in zip(on_sets, dc_sets)]
+    if n == 0:
+        return ExactCover(terms=tuple((Cube.universe(),) if on else () for on in on_sets),
+                          proven=False, lower_bound=0)
+    terms = espresso_cover(n, on_cubes, off_cubes)
+    return ExactCover(terms=tuple(terms), proven=False, lower_bound=0)

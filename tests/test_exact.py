@@ -1,0 +1,142 @@
+"""Two-level minimization: exact against Espresso, brute force, sympy and textbooks."""
+
+from __future__ import annotations
+
+import itertools
+import random
+
+import pytest
+import sympy
+from hypothesis import given, settings
+from hypothesis import strategies as st
+from reference import brute_force_minimum
+from sympy.logic import SOPform
+
+from fsmsynth import OptionError
+from fsmsynth.logic.sop import minimize_sop
+
+
+@st.composite
+def functions(draw: st.DrawFn, max_inputs: int = 8, outputs: int = 1) -> tuple[
+        int, list[list[int]], list[list[int]]]:
+    """A random incompletely specified function: (n, on per output, dc per output)."""
+    n = draw(st.integers(1, max_inputs))
+    on, dc = [], []
+    for _ in range(outputs):
+        kinds = draw(st.lists(st.sampled_from("01-"), min_size=1 << n, max_size=1 << n))
+        on.append([m for m, k in enumerate(kinds) if k == "1"])
+        dc.append([m for m, k in enumerate(kinds) if k == "-"])
+    return n, on, dc
+
+
+def value(term: str, m: int, n: int) -> bool:
+    return all(ch == "-" or int(ch) == (m >> (n - 1 - i) & 1) for i, ch in enumerate(term))
+
+
+def agrees(cover: object, n: int, on: list[int], dc: list[int], output: int = 0) -> bool:
+    terms = cover.output_terms(output)  # type: ignore[attr-defined]
+    care_off = set(range(1 << n)) - set(on) - set(dc)
+    return (all(any(value(t, m, n) for t in terms) for m in on)
+            and not any(any(value(t, m, n) for t in terms) for m in care_off))
+
+
+@settings(max_examples=60)
+@given(functions(max_inputs=8))
+def test_exact_never_has_more_terms_than_espresso(f: tuple[int, list[list[int]], list[list[int]]]
+                                                  ) -> None:
+    n, (on,), (dc,) = f
+    exact = minimize_sop(n, on, dc)
+    heuristic = minimize_sop(n, on, dc, method="heuristic")
+    assert exact.proven
+    assert agrees(exact, n, on, dc) and agrees(heuristic, n, on, dc)
+    assert len(exact.terms) <= len(heuristic.terms)
+
+
+@settings(max_examples=40)
+@given(functions(max_inputs=6, outputs=3))
+def test_multi_output_exact_never_more_terms_than_espresso(
+        f: tuple[int, list[list[int]], list[list[int]]]) -> None:
+    n, on, dc = f
+    exact = minimize_sop(n, on, dc)
+    heuristic = minimize_sop(n, on, dc, method="heuristic")
+    for o in range(3):
+        assert agrees(exact, n, on[o], dc[o], o) and agrees(heuristic, n, on[o], dc[o], o)
+    assert len(exact.terms) <= len(heuristic.terms)
+
+
+@settings(max_examples=80)
+@given(functions(max_inputs=4))
+def test_exact_equals_brute_force_minimum(f: tuple[int, list[list[int]], list[list[int]]]) -> None:
+    n, (on,), (dc,) = f
+    exact = minimize_sop(n, on, dc)
+    points = {sum(1 << i for i in range(n) if m >> (n - 1 - i) & 1) for m in on}
+    free = {sum(1 << i for i in range(n) if m >> (n - 1 - i) & 1) for m in dc}
+    assert (len(exact.terms), exact.literals) == brute_force_minimum(n, points, free)
+
+
+@settings(max_examples=25)
+@given(functions(max_inputs=8))
+def test_against_sympy_sopform(f: tuple[int, list[list[int]], list[list[int]]]) -> None:
+    # sympy (a reference library): SOPform returns a sum of products that agrees with the
+    # function on its care set; ours must agree too and have no more terms.
+    n, (on,), (dc,) = f
+    names = sympy.symbols(f"v0:{n}")
+    reference = SOPform(names, [list(map(int, format(m, f"0{n}b"))) for m in on],
+                        [list(map(int, format(m, f"0{n}b"))) for m in dc])
+    ours = minimize_sop(n, on, dc)
+    sympy_terms = (0 if reference == sympy.false else
+                   len(reference.args) if isinstance(reference, sympy.Or) else 1)
+    assert len(ours.terms) <= sympy_terms
+    ours_expr = ours.to_sympy([str(v) for v in names])
+    for m in on + [m for m in range(1 << n) if m not in on and m not in dc]:
+        point = dict(zip(names, (bool(int(b)) for b in format(m, f"0{n}b"))))
+        want = m in on
+        assert bool(reference.subs(point)) == want
+        assert bool(ours_expr.subs(point)) == want
+
+
+def test_cyclic_core_needs_petrick() -> None:
+    # Roth and Kinney, Fundamentals of Logic Design, 7th ed., section 6.5 (Petrick's
+    # method): f(a,b,c) = sum m(0,1,2,5,6,7) has six prime implicants, none essential (a
+    # cyclic core); the minimum has 3 terms, 6 literals (from memory).
+    petrick = minimize_sop(3, on=[0, 1, 2, 5, 6, 7], method="petrick")
+    exact = minimize_sop(3, on=[0, 1, 2, 5, 6, 7])
+    assert (len(petrick.terms), petrick.literals) == (3, 6) == (len(exact.terms), exact.literals)
+    assert set(exact.terms) in ({"00-", "1-1", "-10"}, {"0-0", "-01", "11-"})
+
+
+def test_mano_karnaugh_map_example() -> None:
+    # Mano and Ciletti, Digital Design, 5th ed., section 3.3 (four-variable map):
+    # F(w,x,y,z) = sum m(0,1,2,4,5,6,8,9,12,13,14) = y' + w'z' + xz' (from memory).
+    r = minimize_sop(4, on=[0, 1, 2, 4, 5, 6, 8, 9, 12, 13, 14])
+    assert set(r.terms) == {"--0-", "0--0", "-1-0"} and r.proven
+
+
+def test_mano_dont_care_example() -> None:
+    # Mano and Ciletti, Digital Design, 5th ed., section 3.5 (don't-care conditions):
+    # F = sum m(1,3,7,11,15), d = (0,2,5) has the two minimal forms yz + w'x' and
+    # yz + w'z (from memory).
+    r = minimize_sop(4, on=[1, 3, 7, 11, 15], dc=[0, 2, 5])
+    assert set(r.terms) in ({"--11", "00--"}, {"--11", "0--1"})
+
+
+def test_time_limit_returns_best_found_with_a_bound() -> None:
+    rng = random.Random(12)
+    points = list(range(1 << 12))
+    rng.shuffle(points)
+    third = len(points) // 3
+    r = minimize_sop(12, on=points[:third], dc=points[third:2 * third], time_limit=0.05)
+    assert not r.proven and 0 < r.lower_bound <= len(r.terms)
+    assert agrees(r, 12, points[:third], points[third:2 * third])
+
+
+def test_bad_minterm() -> None:
+    with pytest.raises(OptionError, match=r"^minterm 8 of output 0: use 0 \.\. 7$"):
+        minimize_sop(3, on=[8])
+
+
+def test_constant_functions() -> None:
+    assert minimize_sop(2, on=[]).terms == ()
+    assert minimize_sop(2, on=[0, 1, 2, 3]).expression() == "1"
+    for n, on in itertools.product((1, 2), ([0],)):
+        assert minimize_sop(n, on=on).proven
