@@ -131,18 +131,50 @@ def _cover_rows(on_sets: Sequence[set[int]],
     return rows
 
 
+def _reduce(rows: list[list[int]], weights: Sequence[int]) -> tuple[list[list[int]], set[int]]:
+    """Cyclic core of a covering table: take essential columns, drop dominated rows and
+    columns, repeat until nothing changes (McCluskey 1956).
+
+    A row is dropped when another row's columns are a subset of its own (covering that
+    one covers it); a column when another column, no costlier, covers all its rows.
+    Returns the remaining rows and the columns taken.
+    """
+    chosen: set[int] = set()
+    table = [frozenset(r) for r in rows]
+    while True:
+        essential = {next(iter(r)) for r in table if len(r) == 1}
+        if essential:
+            chosen |= essential
+            table = [r for r in table if not r & chosen]
+            continue
+        # Row dominance: keep only the minimal rows (distinct), smallest first.
+        kept: list[frozenset[int]] = []
+        for r in sorted(set(table), key=len):
+            if not any(k <= r for k in kept):
+                kept.append(r)
+        # Column dominance.
+        rows_of: dict[int, set[int]] = {}
+        for i, r in enumerate(kept):
+            for j in r:
+                rows_of.setdefault(j, set()).add(i)
+        columns = sorted(rows_of, key=lambda j: (-len(rows_of[j]), weights[j], j))
+        dominated: set[int] = set()
+        for a_pos, a in enumerate(columns):
+            if a in dominated:
+                continue
+            for b in columns[a_pos + 1:]:
+                if b not in dominated and weights[a] <= weights[b] and rows_of[b] <= rows_of[a]:
+                    dominated.add(b)
+        reduced = [r - dominated for r in kept] if dominated else kept
+        if len(reduced) == len(table) and not dominated:
+            return [sorted(r) for r in reduced], chosen
+        table = reduced
+
+
 def _solve_cover(rows: list[list[int]], weights: Sequence[int],
                  time_limit: float) -> tuple[set[int], bool, float]:
     """Minimum-weight set of columns hitting every row: (chosen, proven, lower bound)."""
-    chosen: set[int] = set()
-    # Essential columns: the only one covering some row.
-    while True:
-        essential = {r[0] for r in rows if len(r) == 1}
-        if not essential:
-            break
-        chosen |= essential
-        rows = [r for r in rows if not chosen.intersection(r)]
-    rows = [r for r in rows if not chosen.intersection(r)]
+    rows, chosen = _reduce(rows, weights)
     if not rows:
         return chosen, True, float(sum(weights[j] for j in chosen))
     columns = sorted({j for r in rows for j in r})
