@@ -76,7 +76,12 @@ def _parser() -> argparse.ArgumentParser:
                        help=f"flip-flop kind: {', '.join(sorted(STORAGES))}, best (cheapest per "
                             "bit), or one kind per state bit, bit 0 first (jk,d); default d")
     build.add_argument("--encoding", default="binary", type=str,
-                       help="binary, gray, one-hot, or state=code,... (default binary)")
+                       help="binary, gray, one-hot, adjacency, exhaustive, anneal, or "
+                            "state=code,... (default binary)")
+    build.add_argument("--seed", type=int, default=0, help="seed of the anneal search (0)")
+    build.add_argument("--budget", type=int, help="steps of the anneal search (default 400)")
+    build.add_argument("--width", type=int,
+                       help="code width in bits for adjacency, exhaustive and anneal")
     build.add_argument("--unused", default="dont-care", choices=UNUSED_POLICIES,
                        help="unused state codes: don't cares, or safe (go to reset)")
     build.add_argument("--logic", default="heuristic", choices=LOGIC_METHODS,
@@ -143,6 +148,9 @@ def _report(design: Design) -> dict[str, object]:
                      "codes": {s: design.encoding.code_string(s)
                                for s in design.encoded_table.states}},
         "unused": design.unused,
+        "assignment": None if design.assignment is None else {
+            "cost": design.assignment.cost, "evaluated": design.assignment.evaluated,
+            "proven": design.assignment.proven, "interrupted": design.assignment.interrupted},
         "states": {"given": len(design.table.states), "encoded": len(design.encoded_table.states),
                    "merged": [list(c) for c in m.merged] if m else [],
                    "unreachable": list(m.unreachable) if m else [],
@@ -160,7 +168,8 @@ def _build(args: argparse.Namespace) -> int:
     table = read_table(args.spec)
     design = synthesize(table, _storage_arg(args.storage), _encoding_arg(args.encoding),
                         unused=args.unused, minimize=not args.no_minimize, logic=args.logic,
-                        weights=_weights_arg(args.weights))
+                        weights=_weights_arg(args.weights), seed=args.seed, budget=args.budget,
+                        width=args.width)
     out = Path(args.out)
     files = {out / f"{table.name}.v": design.verilog, out / f"{table.name}.json": design.json}
     if args.testbench:
@@ -178,6 +187,12 @@ def _build(args: argparse.Namespace) -> int:
                                    enumerate(design.storages)) + ")")
     print(f"{table.name}: {len(encoded.states)} states, {kinds} flip-flops, "
           f"{design.encoding.method} encoding ({codes})")
+    if design.assignment is not None:
+        a = design.assignment
+        ending = (", interrupted: best so far" if a.interrupted else
+                  ", proven best" if a.proven else "")
+        print(f"state assignment ({design.encoding.method}): cost {a.cost:g} after "
+              f"{a.evaluated} assignments{ending}")
     if design.minimization is not None:
         for line in _minimization_lines(design.minimization, len(table.states)):
             print(line)

@@ -129,21 +129,29 @@ def normal_terms(terms: Iterable[Cube]) -> tuple[Cube, ...]:
     return tuple(unique)
 
 
-def logic_shape(covers: Sequence[Sequence[Cube]]) -> LogicShape:
-    """The gates needed to build these covers under the rules of the module docstring."""
+_ONE = (Cube.universe(),)
+
+
+def logic_shape(covers: Sequence[Sequence[Cube]], *, normalized: bool = False) -> LogicShape:
+    """The gates needed to build these covers under the rules of the module docstring.
+
+    ``normalized=True`` promises every cover is already in :func:`normal_terms` form (the
+    cover search calls this in its inner loop).
+    """
     products: dict[Cube, None] = {}
-    inverted: set[int] = set()
+    inverted = 0
     ors: dict[tuple[Cube, ...], None] = {}
-    for terms in map(normal_terms, covers):
-        if terms == (Cube.universe(),):
+    for raw in covers:
+        terms = tuple(raw) if normalized else normal_terms(raw)
+        if terms == _ONE:
             continue
         for t in terms:
-            products.setdefault(t)
-            inverted.update(v for v, positive in t.literals() if not positive)
+            products[t] = None
+            inverted |= t.care & ~t.value
         if len(terms) >= 2:
-            ors.setdefault(terms)
-    return LogicShape(products=tuple(products), inverted=tuple(sorted(inverted)),
-                      or_inputs=tuple(ors))
+            ors[terms] = None
+    bits = tuple(v for v in range(inverted.bit_length()) if inverted >> v & 1)
+    return LogicShape(products=tuple(products), inverted=bits, or_inputs=tuple(ors))
 
 
 def weigh(gates: Mapping[str, int], gate_inputs: int, weights: CostWeights) -> float:

@@ -6,11 +6,21 @@ from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, replace
 from functools import cached_property
 
+from fsmsynth.assign import (
+    SEARCHES,
+    Scorer,
+    SearchResult,
+    adjacency_codes,
+    anneal_search,
+    exhaustive_search,
+    min_width,
+)
 from fsmsynth.cost import DEFAULT_WEIGHTS, Cost, CostWeights, cost_of, logic_shape
 from fsmsynth.encode import Encoding, encode
 from fsmsynth.equations import Equation
 from fsmsynth.errors import OptionError, VerificationError
 from fsmsynth.excite import LogicFunctions, excite
+from fsmsynth.frozen import FrozenMap
 from fsmsynth.logic.cover import Cover, minimize_logic
 from fsmsynth.netlist import Netlist, build_netlist
 from fsmsynth.reduce import StateMinimization, minimize_states
@@ -53,6 +63,9 @@ class Design:
         Cost summary and the ranking number ``cost.total``.
     verification:
         The proof that the netlist realizes the table (``None`` when skipped).
+    assignment:
+        For a searched encoding (``"exhaustive"``, ``"anneal"``): what the search found and
+        how it ended (evaluations, proven, interrupted); ``None`` otherwise.
     """
 
     table: StateTable
@@ -66,6 +79,7 @@ class Design:
     netlist: Netlist
     cost: Cost
     verification: Verification | None
+    assignment: SearchResult | None = None
 
     @cached_property
     def verilog(self) -> str:
@@ -109,8 +123,8 @@ StorageChoice = str | Storage | Sequence[str | Storage] | Mapping[int, str | Sto
 def synthesize(table: StateTable, storage: StorageChoice = "d",
                encoding: str | Mapping[str, int | str] = "binary", *,
                unused: str = "dont-care", weights: CostWeights = DEFAULT_WEIGHTS,
-               logic: str = "heuristic", minimize: bool = True,
-               check: bool = True) -> Design:
+               logic: str = "heuristic", minimize: bool = True, check: bool = True,
+               seed: int = 0, budget: int | None = None, width: int | None = None) -> Design:
     """Synthesize ``table`` into equations and a netlist, and prove the result.
 
     Parameters
@@ -125,7 +139,11 @@ def synthesize(table: StateTable, storage: StorageChoice = "d",
         never costlier than any single kind for all bits.
     encoding:
         ``"binary"``, ``"gray"``, ``"one-hot"`` or a mapping from state to code
-        (see :func:`fsmsynth.encode.encode`).
+        (see :func:`fsmsynth.encode.encode`); or a search for cheap logic
+        (:mod:`fsmsynth.assign`): ``"adjacency"`` (assignment rules), ``"exhaustive"``
+        (every assignment up to bit permutation, plus one-hot; proven best) or ``"anneal"``
+        (simulated annealing).  Searches score assignments with the storage kind asked for
+        (D when it is ``"best"``).
     unused:
         ``"dont-care"`` (cheapest) or ``"safe"`` (every unused code goes to reset in one clock).
     weights:
@@ -140,6 +158,12 @@ def synthesize(table: StateTable, storage: StorageChoice = "d",
         ignored.
     check:
         Run :func:`fsmsynth.verify.verify` (on by default).
+    seed, budget:
+        For ``"anneal"``: the random seed (same seed, same codes) and the number of steps
+        (default 400).  Ctrl-C stops a search and keeps the best found.
+    width:
+        Code width in bits for ``"adjacency"``, ``"exhaustive"`` and ``"anneal"`` (default:
+        the fewest that fit); wider codes often simplify the logic.
 
     Raises
     ------
@@ -165,7 +189,14 @@ def synthesize(table: StateTable, storage: StorageChoice = "d",
     work = reduction.table if reduction else table
     if reduction and isinstance(encoding, Mapping):
         encoding = {s: c for s, c in encoding.items() if s in work.states or s not in table.states}
-    codes = encode(work, encoding)
+    search: SearchResult | None = None
+    if isinstance(encoding, str) and encoding in SEARCHES:
+        codes, search = _search(work, encoding, storage, unused, weights, logic, seed, budget,
+                                width)
+    else:
+        if width is not None:
+            raise OptionError("width applies to adjacency, exhaustive and anneal encodings")
+        codes = encode(work, encoding)
     if storage == "best":
         candidates = [(k,) * codes.width for k in STORAGES.values()]
         candidates.append(_cheapest_per_bit(work, codes, unused, weights, logic))
@@ -175,7 +206,33 @@ def synthesize(table: StateTable, storage: StorageChoice = "d",
     else:
         chosen = _build(table, reduction, work, codes, _per_bit(storage, codes.width), unused,
                         weights, logic)
+    if search is not None:
+        chosen = replace(chosen, assignment=search)
     return _proved(chosen) if check else chosen
+
+
+def _search(table: StateTable, method: str, storage: StorageChoice, unused: str,
+            weights: CostWeights, logic: str, seed: int, budget: int | None,
+            width: int | None) -> tuple[Encoding, SearchResult | None]:
+    """Codes chosen by one of the searches of :mod:`fsmsynth.assign`."""
+    k = width if width is not None else min_width(len(table.states))
+    if k < min_width(len(table.states)):
+        raise OptionError(f"width {k} is too small for {len(table.states)} states")
+    if method == "adjacency":
+        codes = adjacency_codes(table, k)
+        return Encoding(method=method, width=k,
+                        codes=FrozenMap(dict(zip(table.states, codes)))), None
+
+    def kinds(bits: int) -> tuple[Storage, ...]:
+        return _per_bit("d" if storage == "best" else storage, bits)
+
+    score = Scorer(table=table, storages=kinds, unused=unused, weights=weights, logic=logic)
+    if method == "exhaustive":
+        result = exhaustive_search(score, len(table.states), k)
+    else:
+        result = anneal_search(score, table, k, seed, 400 if budget is None else budget)
+    return Encoding(method=method, width=result.width,
+                    codes=FrozenMap(dict(zip(table.states, result.codes)))), result
 
 
 def _per_bit(storage: StorageChoice, width: int) -> tuple[Storage, ...]:

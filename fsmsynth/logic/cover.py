@@ -12,7 +12,7 @@ from __future__ import annotations
 from collections.abc import Sequence
 from dataclasses import dataclass
 
-from fsmsynth.cost import DEFAULT_WEIGHTS, CostWeights, logic_shape, normal_terms, weigh
+from fsmsynth.cost import DEFAULT_WEIGHTS, CostWeights, normal_terms
 from fsmsynth.errors import OptionError
 from fsmsynth.excite import Function, LogicFunctions
 from fsmsynth.logic.cube import Cube
@@ -62,10 +62,36 @@ class Cover:
 
 def _logic_weight(terms: Sequence[Sequence[Cube]], weights: CostWeights) -> tuple[
         float, int, int]:
-    """Gate cost, then (to break ties toward plain equations) literals and terms per function."""
-    shape = logic_shape(terms)
-    return (weigh(shape.gate_counts, shape.gate_inputs, weights),
-            sum(t.literal_count for f in terms for t in f), sum(len(f) for f in terms))
+    """Gate cost, then (to break ties toward plain equations) literals and terms per function.
+
+    The same count as :func:`fsmsynth.cost.logic_shape` and :func:`fsmsynth.cost.weigh`, in
+    one pass: this runs in the inner loop of the cover choice and of the encoding searches.
+    """
+    products: set[Cube] = set()
+    ors: set[tuple[Cube, ...]] = set()
+    inverted = and_gates = and_inputs = or_inputs = literals = count = 0
+    for f in terms:
+        count += len(f)
+        if len(f) == 1 and f[0].care == 0:
+            continue
+        for t in f:
+            lits = t.care.bit_count()
+            literals += lits
+            if t not in products:
+                products.add(t)
+                inverted |= t.care & ~t.value
+                if lits >= 2:
+                    and_gates += 1
+                    and_inputs += lits
+        if len(f) >= 2 and tuple(f) not in ors:
+            ors.add(tuple(f))
+            or_inputs += len(f)
+    nots = inverted.bit_count()
+    gate = weights.gate
+    total = (gate.get("not", 0.0) * nots + gate.get("and", 0.0) * and_gates
+             + gate.get("or", 0.0) * len(ors)
+             + weights.gate_input * (nots + and_inputs + or_inputs))
+    return total, literals, count
 
 
 def _improve(start: list[tuple[Cube, ...]], options: Sequence[Sequence[tuple[Cube, ...]]],
@@ -127,7 +153,7 @@ def _separate(terms: list[tuple[Cube, ...]], functions: LogicFunctions, engine: 
         for keep, redo in ((ia, ib), (ib, ia)):
             f = functions.functions[redo]
             (new,) = engine([f.on], [f.off + terms[keep]])
-            trial = terms[:redo] + [new] + terms[redo + 1:]
+            trial = terms[:redo] + [normal_terms(new)] + terms[redo + 1:]
             trials.append((_logic_weight(trial, weights), trial))
         terms = min(trials, key=lambda t: t[0])[1]
     return terms

@@ -1,0 +1,310 @@
+"""State assignment that looks for cheap logic, judged by the true cost after minimization.
+
+Three searches, all scoring a candidate assignment by synthesizing its logic (excitation,
+two-level minimization, cost) exactly as the final design will be built:
+
+* ``adjacency``: the state-assignment rules of Armstrong (1962), in the priority order
+  textbooks give them (Katz and Borriello, *Contemporary Logic Design*, 2nd ed., 2005,
+  section 9.? "state assignment guidelines", from memory): (1) states with the same next
+  state under the same input, (2) next states of one state, (3) states with the same
+  output under the same input should get adjacent codes.  The rules give pair weights
+  4, 2, 1; codes are placed greedily in the hypercube and improved by swaps to minimize
+  the weighted Hamming distance.  The logic is not synthesized during the placement.
+* ``exhaustive``: every assignment (reset anywhere) when there are at most
+  :data:`RAW_LIMIT`, otherwise one per class under permuting the state bits; each is
+  synthesized, and one-hot is tried too.  Renaming state bits renames the logic, so the
+  minimum two-level cost is the same across a class; only the minimizer's choice among
+  equally cheap covers can differ, by a gate or so.  Complementing a bit is not a symmetry
+  of the true cost (it complements D-input logic and moves inverters), so assignments are
+  never merged under it.
+* ``anneal``: simulated annealing over assignments (swap two states' codes, or move a
+  state to an unused code), seeded and bounded by a step budget, started from the better
+  of binary and adjacency.
+
+References
+----------
+Armstrong, D. B., "A programmed algorithm for assigning internal codes to sequential
+machines", *IRE Trans. Electronic Computers* EC-11, 1962.
+McCluskey, E. J. and Unger, S. H., "A note on the number of internal variable assignments
+for sequential switching circuits", *IRE Trans. Electronic Computers* EC-8, 1959.
+Kirkpatrick, S., Gelatt, C. D. and Vecchi, M. P., "Optimization by simulated annealing",
+*Science* 220, 1983.
+"""
+
+from __future__ import annotations
+
+import itertools
+import math
+import random
+import sys
+import time
+from collections.abc import Callable, Iterator, Sequence
+from dataclasses import dataclass
+
+from fsmsynth.cost import CostWeights, cost_of, logic_shape
+from fsmsynth.encode import Encoding, encode
+from fsmsynth.excite import excite
+from fsmsynth.frozen import FrozenMap
+from fsmsynth.logic.cover import minimize_logic
+from fsmsynth.logic.cube import Cube, partition
+from fsmsynth.storage import Storage
+from fsmsynth.table import StateTable
+
+SEARCHES = ("adjacency", "exhaustive", "anneal")
+RAW_LIMIT = 720
+"""Up to this many raw assignments, ``exhaustive`` scores every one of them."""
+
+
+@dataclass(frozen=True, slots=True)
+class Scorer:
+    """The true cost of an assignment: synthesize its logic and weigh it."""
+
+    table: StateTable
+    storages: Callable[[int], tuple[Storage, ...]]
+    unused: str
+    weights: CostWeights
+    logic: str
+
+    def __call__(self, codes: Sequence[int], width: int) -> tuple[float, int]:
+        encoding = Encoding(method="given", width=width,
+                            codes=FrozenMap(dict(zip(self.table.states, codes))))
+        kinds = self.storages(width)
+        cover = minimize_logic(excite(self.table, encoding, kinds, unused=self.unused),
+                               self.weights, self.logic)
+        counts: dict[str, int] = {}
+        for s in kinds:
+            counts[s.name] = counts.get(s.name, 0) + 1
+        cost = cost_of(logic_shape(cover.terms), counts, self.weights)
+        return cost.total, cost.gate_inputs
+
+
+class _Progress:
+    """A one-line progress bar on a terminal's stderr; silent when stderr is not a terminal."""
+
+    def __init__(self, label: str, total: int | None) -> None:
+        self.label, self.total = label, total
+        self.live = sys.stderr.isatty()
+        self.last = 0.0
+
+    def update(self, done: int, best: float) -> None:
+        now = time.monotonic()
+        if not self.live or now - self.last < 0.2:
+            return
+        self.last = now
+        if self.total:
+            filled = int(30 * done / self.total)
+            bar = "#" * filled + "." * (30 - filled)
+            sys.stderr.write(f"\r{self.label} [{bar}] {done}/{self.total} best {best:g}")
+        else:
+            sys.stderr.write(f"\r{self.label} {done} steps, best {best:g}")
+        sys.stderr.flush()
+
+    def close(self) -> None:
+        if self.live:
+            sys.stderr.write("\r" + " " * 79 + "\r")
+            sys.stderr.flush()
+
+
+def min_width(n_states: int) -> int:
+    """Fewest bits that give every state its own code."""
+    return max(1, (n_states - 1).bit_length())
+
+
+def count_assignments(n: int, k: int) -> int:
+    """Assignments of n states to k-bit codes up to permuting and complementing bits, counted
+    by enumeration.  Equals (2^k - 1)! / ((2^k - n)! k!) (McCluskey and Unger 1959) whenever
+    no assignment is left fixed by a bit permutation, as for n = 3..8 in the fewest bits.
+
+    Complementing bits can bring the first state to code 0, so each class has members with
+    the first state at 0, and among those only bit permutations remain.
+    """
+    perms = [p for p in itertools.permutations(range(k)) if p != tuple(range(k))]
+    return sum(1 for rest in itertools.permutations(range(1, 1 << k), n - 1)
+               if all(tuple(_permute(c, p) for c in (0, *rest)) >= (0, *rest) for p in perms))
+
+
+def _permute(code: int, perm: tuple[int, ...]) -> int:
+    return sum(1 << perm[b] for b in range(len(perm)) if code >> b & 1)
+
+
+def exhaustive_assignments(n: int, k: int) -> Iterator[tuple[int, ...]]:
+    """Every injective assignment of n states to k-bit codes, one per class under bit
+    permutations (the lexicographically smallest member)."""
+    perms = [p for p in itertools.permutations(range(k)) if p != tuple(range(k))]
+    for codes in itertools.permutations(range(1 << k), n):
+        if all(tuple(_permute(c, p) for c in codes) >= codes for p in perms):
+            yield codes
+
+
+def adjacency_weights(table: StateTable) -> dict[tuple[int, int], int]:
+    """Pair weights from the three assignment rules (see the module docstring)."""
+    index = {s: i for i, s in enumerate(table.states)}
+    classes = partition(Cube.from_string(r[1]) for r in table.rows)
+    weights: dict[tuple[int, int], int] = {}
+
+    def add(a: int, b: int, w: int) -> None:
+        if a != b:
+            key = (min(a, b), max(a, b))
+            weights[key] = weights.get(key, 0) + w
+
+    bits = "".join
+    for cls in classes:
+        word = bits("1" if cls.value >> j & 1 else "0" for j in range(len(table.inputs)))
+        by_next: dict[str, list[int]] = {}
+        by_out: dict[str, list[int]] = {}
+        for s in table.states:
+            nxt, out = table.lookup(s, word)
+            if nxt is not None:
+                by_next.setdefault(nxt, []).append(index[s])
+            if out and "-" not in out:
+                by_out.setdefault(out, []).append(index[s])
+        for group in by_next.values():
+            for a, b in itertools.combinations(group, 2):
+                add(a, b, 4)
+        for group in by_out.values():
+            for a, b in itertools.combinations(group, 2):
+                add(a, b, 1)
+    for s in table.states:
+        targets = sorted({index[r[2]] for r in table.rows_of(s) if r[2] is not None})
+        for a, b in itertools.combinations(targets, 2):
+            add(a, b, 2)
+    return weights
+
+
+def adjacency_codes(table: StateTable, width: int) -> tuple[int, ...]:
+    """Codes placing heavily weighted pairs at small Hamming distance; reset gets 0."""
+    n = len(table.states)
+    weights = adjacency_weights(table)
+    w = [[0] * n for _ in range(n)]
+    for (a, b), v in weights.items():
+        w[a][b] = w[b][a] = v
+    reset = table.states.index(table.reset)
+    order = [reset] + sorted((s for s in range(n) if s != reset), key=lambda s: (-sum(w[s]), s))
+    codes: dict[int, int] = {reset: 0}
+    free = set(range(1, 1 << width))
+    for s in order[1:]:
+        best = min(sorted(free), key=lambda c: sum(w[s][t] * (c ^ codes[t]).bit_count()
+                                                  for t in codes))
+        codes[s] = best
+        free.discard(best)
+
+    def spread(assign: dict[int, int]) -> int:
+        return sum(v * (assign[a] ^ assign[b]).bit_count() for (a, b), v in weights.items())
+
+    current = spread(codes)
+    improved = True
+    while improved:
+        improved = False
+        for a in range(n):
+            if a == reset:
+                continue
+            for b in range(a + 1, n):
+                if b == reset:
+                    continue
+                codes[a], codes[b] = codes[b], codes[a]
+                trial = spread(codes)
+                if trial < current:
+                    current, improved = trial, True
+                else:
+                    codes[a], codes[b] = codes[b], codes[a]
+            for c in sorted(set(range(1 << width)) - set(codes.values())):
+                old = codes[a]
+                codes[a] = c
+                trial = spread(codes)
+                if trial < current:
+                    current, improved = trial, True
+                else:
+                    codes[a] = old
+    return tuple(codes[i] for i in range(n))
+
+
+@dataclass(frozen=True, slots=True)
+class SearchResult:
+    """Codes found by a search, what they cost, and how the search ended."""
+
+    codes: tuple[int, ...]
+    width: int
+    cost: float
+    evaluated: int
+    proven: bool
+    interrupted: bool
+
+
+def exhaustive_search(score: Scorer, n: int, width: int) -> SearchResult:
+    """Score every assignment (or class, see the module docstring) and one-hot."""
+    raw = math.perm(1 << width, n)
+    candidates: Iterator[tuple[int, ...]]
+    if raw <= RAW_LIMIT:
+        total, candidates = raw, itertools.permutations(range(1 << width), n)
+    else:
+        total = raw // math.factorial(width)
+        candidates = exhaustive_assignments(n, width)
+    progress = _Progress("exhaustive", total)
+    best: tuple[tuple[float, int], tuple[int, ...], int] | None = None
+    evaluated = 0
+    interrupted = False
+    try:
+        for codes in candidates:
+            value = score(codes, width)
+            evaluated += 1
+            if best is None or value < best[0]:
+                best = (value, codes, width)
+            progress.update(evaluated, best[0][0])
+        one_hot = tuple(1 << i for i in range(n))
+        value = score(one_hot, n)
+        evaluated += 1
+        if best is None or value < best[0]:
+            best = (value, one_hot, n)
+    except KeyboardInterrupt:
+        interrupted = True
+    finally:
+        progress.close()
+    assert best is not None, "interrupted before the first assignment was scored"
+    return SearchResult(codes=best[1], width=best[2], cost=best[0][0], evaluated=evaluated,
+                        proven=not interrupted, interrupted=interrupted)
+
+
+def anneal_search(score: Scorer, table: StateTable, width: int, seed: int,
+                  budget: int) -> SearchResult:
+    """Simulated annealing over assignments, deterministic for a given seed and budget."""
+    rng = random.Random(seed)
+    n = len(table.states)
+    cache: dict[tuple[int, ...], tuple[float, int]] = {}
+
+    def value(codes: tuple[int, ...]) -> tuple[float, int]:
+        if codes not in cache:
+            cache[codes] = score(codes, width)
+        return cache[codes]
+
+    binary = encode(table, "binary")
+    starts = [tuple(binary.codes[s] for s in table.states)] if binary.width == width else []
+    starts.append(adjacency_codes(table, width))
+    current = min(starts, key=value)
+    best = current
+    progress = _Progress("anneal", budget)
+    temperature = max(1.0, value(current)[0] * 0.05)
+    cooling = (0.01) ** (1.0 / max(1, budget))
+    interrupted = False
+    try:
+        for step in range(budget):
+            trial = list(current)
+            unused = sorted(set(range(1 << width)) - set(trial))
+            if unused and rng.random() < 0.5:
+                trial[rng.randrange(n)] = rng.choice(unused)
+            else:
+                a, b = rng.sample(range(n), 2) if n > 1 else (0, 0)
+                trial[a], trial[b] = trial[b], trial[a]
+            candidate = tuple(trial)
+            delta = value(candidate)[0] - value(current)[0]
+            if delta <= 0 or rng.random() < math.exp(-delta / temperature):
+                current = candidate
+                if value(current) < value(best):
+                    best = current
+            temperature *= cooling
+            progress.update(step + 1, value(best)[0])
+    except KeyboardInterrupt:
+        interrupted = True
+    finally:
+        progress.close()
+    return SearchResult(codes=best, width=width, cost=value(best)[0], evaluated=len(cache),
+                        proven=False, interrupted=interrupted)

@@ -1,0 +1,115 @@
+"""State assignment searches: exhaustive, adjacency, anneal; safe unused codes."""
+
+from __future__ import annotations
+
+import itertools
+import math
+from pathlib import Path
+
+import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
+from reference import step
+from strategies import state_tables
+
+from fsmsynth import StateTable, synthesize
+from fsmsynth.assign import count_assignments, exhaustive_assignments
+from fsmsynth.cli import main
+from fsmsynth.errors import OptionError
+from fsmsynth.formats import read_table
+
+EXAMPLES = Path(__file__).resolve().parent.parent / "examples"
+METHODS = ["binary", "gray", "one-hot", "adjacency", "anneal"]
+
+
+@pytest.mark.parametrize("n", range(3, 9))
+def test_count_of_distinct_assignments_matches_the_formula(n: int) -> None:
+    # McCluskey and Unger (1959): (2^k - 1)! / ((2^k - n)! k!) distinct assignments of n
+    # states in k bits up to permuting and complementing bits.
+    k = max(1, (n - 1).bit_length())
+    formula = math.factorial(2**k - 1) // (math.factorial(2**k - n) * math.factorial(k))
+    assert count_assignments(n, k) == formula
+
+
+@pytest.mark.parametrize("n", range(3, 9))
+def test_exhaustive_enumerates_one_assignment_per_bit_permutation_class(n: int) -> None:
+    k = max(1, (n - 1).bit_length())
+    found = list(exhaustive_assignments(n, k))
+    assert len(found) == len(set(found)) == math.perm(2**k, n) // math.factorial(k)
+
+
+@settings(max_examples=12)
+@given(table=state_tables(min_states=3, max_states=6, max_inputs=2, max_outputs=2),
+       storage=st.sampled_from(["d", "jk"]))
+def test_exhaustive_is_no_worse_than_any_other_method(table: StateTable, storage: str) -> None:
+    best = synthesize(table, storage, "exhaustive", check=False)
+    assert best.assignment is not None and best.assignment.proven
+    for method in METHODS:
+        assert best.cost.total <= synthesize(table, storage, method, check=False).cost.total
+
+
+@settings(max_examples=10)
+@given(table=state_tables(min_states=3, max_states=4, max_inputs=2, max_outputs=2),
+       storage=st.sampled_from(["d", "t", "jk"]))
+def test_exhaustive_equals_brute_force_over_raw_assignments(table: StateTable,
+                                                             storage: str) -> None:
+    # Up to 4 states in 2 bits there are 24 raw assignments: all are scored.
+    exhaustive = synthesize(table, storage, "exhaustive", minimize=False, check=False,
+                            logic="exact")
+    k = max(1, (len(table.states) - 1).bit_length())
+    raw = min(synthesize(table, storage, dict(zip(table.states, codes)), minimize=False,
+                         check=False, logic="exact").cost.total
+              for codes in itertools.permutations(range(1 << k), len(table.states)))
+    one_hot = synthesize(table, storage, "one-hot", minimize=False, check=False,
+                         logic="exact").cost.total
+    assert exhaustive.cost.total == min(raw, one_hot)
+
+
+@settings(max_examples=15)
+@given(table=state_tables(min_states=3, max_states=8, max_inputs=2),
+       seed=st.integers(0, 100))
+def test_same_seed_same_codes_and_every_method_verifies(table: StateTable, seed: int) -> None:
+    first = synthesize(table, "jk", "anneal", seed=seed, budget=60)
+    again = synthesize(table, "jk", "anneal", seed=seed, budget=60)
+    assert first.encoding.codes == again.encoding.codes and first.verification
+    for method in ("adjacency", "binary", "one-hot"):
+        assert synthesize(table, "jk", method).verification
+
+
+def test_adjacency_keeps_reset_at_zero_and_accepts_wider_codes() -> None:
+    table = read_table(EXAMPLES / "parcel_locker.toml")
+    design = synthesize(table, "d", "adjacency", width=3)
+    assert design.encoding.width == 3 and design.encoding.codes[table.reset] == 0
+    assert design.verification
+    wide = synthesize(table, "d", "anneal", width=3, budget=50)
+    assert wide.encoding.width == 3 and wide.verification
+
+
+def test_width_too_small() -> None:
+    table = read_table(EXAMPLES / "parcel_locker.toml")
+    with pytest.raises(OptionError, match=r"^width 1 is too small for 4 states$"):
+        synthesize(table, "d", "anneal", width=1)
+
+
+@settings(max_examples=15)
+@given(table=state_tables(min_states=3, max_states=7, max_inputs=2),
+       storage=st.sampled_from(["d", "t", "jk", "sr", "de"]))
+def test_safe_mode_returns_every_unused_code_to_reset(table: StateTable, storage: str) -> None:
+    design = synthesize(table, storage, "binary", unused="safe")
+    assert design.verification is not None
+    reset_code = design.netlist.reset_code
+    for code in design.encoding.unused_codes():
+        for bits in itertools.product("01", repeat=len(table.inputs)):
+            nxt, _outs = step(design.netlist, code, "".join(bits))
+            assert nxt == reset_code
+
+
+def test_build_reports_the_search(tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    spec = str(EXAMPLES / "greenhouse_vent.toml")
+    assert main(["build", spec, "--encoding", "exhaustive", "--storage", "jk", "-o",
+                 str(tmp_path)]) == 0
+    out = capsys.readouterr().out
+    assert "state assignment (exhaustive): cost " in out and "proven best" in out
+    assert main(["build", spec, "--encoding", "anneal", "--seed", "3", "--budget", "40",
+                 "-o", str(tmp_path)]) == 0
+    assert "state assignment (anneal)" in capsys.readouterr().out
