@@ -18,11 +18,13 @@ from fsmsynth.cost import DEFAULT_WEIGHTS, CostWeights
 from fsmsynth.errors import FsmSynthError, OptionError, VerificationError
 from fsmsynth.files import write_if_changed
 from fsmsynth.formats import read_table
+from fsmsynth.formats.delays_toml import read_delays
 from fsmsynth.formats.weights_toml import read_weights
 from fsmsynth.logic.cover import METHODS as LOGIC_METHODS
 from fsmsynth.pipeline import UNUSED_POLICIES, Design, synthesize
 from fsmsynth.reduce import StateMinimization, minimize_states
 from fsmsynth.storage import STORAGES
+from fsmsynth.timing import timing
 from fsmsynth.version import __version__
 from fsmsynth.writers.spec_toml import write_spec
 from fsmsynth.writers.testbench import write_testbench
@@ -88,6 +90,11 @@ def _parser() -> argparse.ArgumentParser:
                        help="two-level minimizer: heuristic (Espresso), exact, or auto "
                             "(exact up to 10 variables); default heuristic")
     build.add_argument("--weights", help="cost weights TOML file (see README, Cost)")
+    build.add_argument("--clock-edge", default="rising", choices=("rising", "falling"),
+                       help="edge the flip-flops sample on (default rising)")
+    build.add_argument("--check", action="store_true",
+                       help="write nothing; exit 1 naming every output file that is missing "
+                            "or differs from what the spec gives now")
     build.add_argument("--no-minimize", action="store_true",
                        help="keep every state (skip state minimization)")
     build.add_argument("-o", "--out", default="build", help="output folder (default build/)")
@@ -103,6 +110,15 @@ def _parser() -> argparse.ArgumentParser:
     reduce.add_argument("--time-limit", type=float, default=10.0,
                         help="seconds for the exact search (default 10)")
     reduce.add_argument("--json", action="store_true", help="print a JSON report instead of text")
+
+    tim = sub.add_parser("timing", help="clock period, hold check and critical path")
+    tim.add_argument("spec", help="state table: .toml spec or .csv table")
+    tim.add_argument("--storage", default="d", type=str, help="as for build (default d)")
+    tim.add_argument("--encoding", default="binary", type=str, help="as for build")
+    tim.add_argument("--logic", default="heuristic", choices=LOGIC_METHODS)
+    tim.add_argument("--clock-edge", default="rising", choices=("rising", "falling"))
+    tim.add_argument("--delays", help="delay model TOML file (see README, Timing)")
+    tim.add_argument("--json", action="store_true", help="print JSON")
 
     comp = sub.add_parser("compare", help="cost of every storage kind and encoding, best first")
     comp.add_argument("spec", help="state table: .toml spec or .csv table")
@@ -169,11 +185,19 @@ def _build(args: argparse.Namespace) -> int:
     design = synthesize(table, _storage_arg(args.storage), _encoding_arg(args.encoding),
                         unused=args.unused, minimize=not args.no_minimize, logic=args.logic,
                         weights=_weights_arg(args.weights), seed=args.seed, budget=args.budget,
-                        width=args.width)
+                        width=args.width, clock_edge=args.clock_edge)
     out = Path(args.out)
     files = {out / f"{table.name}.v": design.verilog, out / f"{table.name}.json": design.json}
     if args.testbench:
         files[out / f"{table.name}_tb.v"] = write_testbench(table)
+    if args.check:
+        stale = [str(p) for p, text in files.items()
+                 if not p.exists() or p.read_bytes() != text.encode("utf-8")]
+        for path in stale:
+            print(f"stale: {path}")
+        if not stale:
+            print(f"up to date: {', '.join(str(p) for p in files)}")
+        return 1 if stale else 0
     written = {str(p): write_if_changed(p, text) for p, text in files.items()}
     if args.json:
         report = _report(design)
@@ -246,6 +270,31 @@ def _reduce(args: argparse.Namespace) -> int:
     else:
         print()
         print(text, end="")
+    return 0
+
+
+def _timing(args: argparse.Namespace) -> int:
+    table = read_table(args.spec)
+    design = synthesize(table, _storage_arg(args.storage), _encoding_arg(args.encoding),
+                        logic=args.logic, clock_edge=args.clock_edge)
+    report = timing(design, read_delays(args.delays) if args.delays else None)
+    if args.json:
+        def steps(path: tuple[object, ...]) -> list[dict[str, object]]:
+            return [{"element": s.element, "kind": s.kind, "net": s.net,  # type: ignore[attr-defined]
+                     "delay": s.delay, "arrival": s.arrival} for s in path]  # type: ignore[attr-defined]
+        print(json.dumps({"machine": table.name, "min_period_ps": report.min_period,
+                          "max_frequency_mhz": report.max_frequency,
+                          "worst_hold_slack_ps": report.worst_hold_slack,
+                          "hold_met": report.hold_met, "edge": report.edge,
+                          "critical_path": steps(report.critical_path),
+                          "hold_path": steps(report.hold_path),
+                          "input_to_output_ps": report.input_to_output}, indent=2))
+        return 0
+    print(f"{table.name}: {design.storage.upper()} flip-flops, {design.encoding.method} encoding")
+    for line in report.lines():
+        print(line)
+    print("Delays are illustrative unless given with --delays: verify timing in the target "
+          "technology.")
     return 0
 
 
@@ -329,7 +378,7 @@ def main(argv: Sequence[str] | None = None) -> int:
     """Run the command line; returns the exit status (0 ok, 2 bad input, 1 failure)."""
     args = _parser().parse_args(argv)
     try:
-        commands = {"build": _build, "reduce": _reduce, "compare": _compare,
+        commands = {"build": _build, "reduce": _reduce, "compare": _compare, "timing": _timing,
                     "convert": _convert, "check": _check}
         return commands[args.command](args)
     except FsmSynthError as exc:

@@ -16,6 +16,7 @@ from fsmsynth.logic.cube import Cube
 from fsmsynth.names import RESERVED_PREFIX
 from fsmsynth.storage import Storage
 
+EDGES = ("rising", "falling")
 GATE_FUNCTIONS = ("not", "buf", "and", "or", "nand", "nor", "xor", "xnor", "const0", "const1")
 
 
@@ -37,7 +38,9 @@ class FlipFlop:
     """An edge-triggered flip-flop holding state bit ``bit``.
 
     ``pins`` connects each data pin (storage pin name, ``"J"``) to a net.  The cell is clocked
-    by the netlist's clock and reset asynchronously (active high) to ``reset_value``.
+    by the netlist's clock on its ``edge`` (``"rising"`` or ``"falling"``) and reset
+    asynchronously (active high) to ``reset_value``: an asynchronous clear when that is 0,
+    an asynchronous set when it is 1.
     """
 
     name: str
@@ -46,6 +49,15 @@ class FlipFlop:
     pins: tuple[tuple[str, str], ...]
     q: str
     reset_value: int
+    edge: str = "rising"
+
+    def __post_init__(self) -> None:
+        assert self.edge in EDGES, self.edge
+
+    @property
+    def reset_kind(self) -> str:
+        """``"clear"`` or ``"set"``: what the asynchronous reset does to this bit."""
+        return "set" if self.reset_value else "clear"
 
     def pin_net(self, pin: str) -> str:
         """The net on data pin ``pin``."""
@@ -112,7 +124,7 @@ def state_net(bit: int) -> str:
 
 
 def build_netlist(name: str, inputs: Sequence[str], outputs: Sequence[str], cover: Cover,
-                  storages: Sequence[Storage], reset_code: int) -> Netlist:
+                  storages: Sequence[Storage], reset_code: int, edge: str = "rising") -> Netlist:
     """Build gates and flip-flops for a cover.
 
     Follows the structural rules of :mod:`fsmsynth.cost`: one inverter per complemented
@@ -129,6 +141,8 @@ def build_netlist(name: str, inputs: Sequence[str], outputs: Sequence[str], cove
         Storage kind of each state bit, bit 0 first.
     reset_code:
         The code loaded by reset.
+    edge:
+        The clock edge every flip-flop samples on: ``"rising"`` or ``"falling"``.
     """
     k = len(storages)
     var_nets = [state_net(b) for b in range(k)] + list(inputs)
@@ -183,7 +197,7 @@ def build_netlist(name: str, inputs: Sequence[str], outputs: Sequence[str], cove
     flip_flops = tuple(
         FlipFlop(name=f"{RESERVED_PREFIX}ff{b}", storage=s, bit=b,
                  pins=tuple((pin, signal_net[f"{pin}{b}"]) for pin in s.pins),
-                 q=state_net(b), reset_value=reset_code >> b & 1)
+                 q=state_net(b), reset_value=reset_code >> b & 1, edge=edge)
         for b, s in enumerate(storages))
     return Netlist(name=name, inputs=tuple(inputs),
                    outputs=tuple((o, signal_net[o]) for o in outputs),

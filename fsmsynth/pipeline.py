@@ -22,7 +22,7 @@ from fsmsynth.errors import OptionError, VerificationError
 from fsmsynth.excite import LogicFunctions, excite
 from fsmsynth.frozen import FrozenMap
 from fsmsynth.logic.cover import Cover, minimize_logic
-from fsmsynth.netlist import Netlist, build_netlist
+from fsmsynth.netlist import EDGES, Netlist, build_netlist
 from fsmsynth.reduce import StateMinimization, minimize_states
 from fsmsynth.storage import STORAGES, Storage, storage_named
 from fsmsynth.table import StateTable
@@ -124,7 +124,8 @@ def synthesize(table: StateTable, storage: StorageChoice = "d",
                encoding: str | Mapping[str, int | str] = "binary", *,
                unused: str = "dont-care", weights: CostWeights = DEFAULT_WEIGHTS,
                logic: str = "heuristic", minimize: bool = True, check: bool = True,
-               seed: int = 0, budget: int | None = None, width: int | None = None) -> Design:
+               seed: int = 0, budget: int | None = None, width: int | None = None,
+               clock_edge: str = "rising") -> Design:
     """Synthesize ``table`` into equations and a netlist, and prove the result.
 
     Parameters
@@ -161,6 +162,8 @@ def synthesize(table: StateTable, storage: StorageChoice = "d",
     seed, budget:
         For ``"anneal"``: the random seed (same seed, same codes) and the number of steps
         (default 400).  Ctrl-C stops a search and keeps the best found.
+    clock_edge:
+        ``"rising"`` (default) or ``"falling"``: the edge every flip-flop samples on.
     width:
         Code width in bits for ``"adjacency"``, ``"exhaustive"`` and ``"anneal"`` (default:
         the fewest that fit); wider codes often simplify the logic.
@@ -206,6 +209,11 @@ def synthesize(table: StateTable, storage: StorageChoice = "d",
     else:
         chosen = _build(table, reduction, work, codes, _per_bit(storage, codes.width), unused,
                         weights, logic)
+    if clock_edge != "rising":
+        if clock_edge not in EDGES:
+            raise OptionError(f"clock edge {clock_edge!r}: use one of {', '.join(EDGES)}")
+        chosen = replace(chosen, netlist=replace(chosen.netlist, flip_flops=tuple(
+            replace(ff, edge=clock_edge) for ff in chosen.netlist.flip_flops)))
     if search is not None:
         chosen = replace(chosen, assignment=search)
     return _proved(chosen) if check else chosen

@@ -8,7 +8,8 @@ Schema ``fsmsynth-netlist``, version 1::
      "gates": [{"name": G, "kind": "not|and|or|const0|const1|...", "inputs": [NET, ...],
                 "output": NET}, ...],
      "flip_flops": [{"name": F, "kind": "d|t|jk|sr", "bit": B, "pins": {PIN: NET, ...},
-                     "q": NET, "reset_value": 0|1, "edge": "rising"}, ...],
+                     "q": NET, "reset_value": 0|1, "reset_kind": "clear|set",
+                     "edge": "rising|falling"}, ...],
      "cost": {...}}
 
 Keys are written in a fixed order and the text is byte-identical for equal netlists.
@@ -39,7 +40,8 @@ def netlist_data(netlist: Netlist, cost: Mapping[str, object] | None = None) -> 
                   for g in netlist.gates],
         "flip_flops": [{"name": ff.name, "kind": ff.storage.name, "bit": ff.bit,
                         "pins": {pin: net for pin, net in ff.pins}, "q": ff.q,
-                        "reset_value": ff.reset_value, "edge": "rising"}
+                        "reset_value": ff.reset_value, "reset_kind": ff.reset_kind,
+                        "edge": ff.edge}
                        for ff in netlist.flip_flops],
     }
     if cost is not None:

@@ -2,7 +2,7 @@
 
 One module named after the machine with ports ``clk``, ``rst``, the inputs and the outputs
 (all 1-bit), gate primitives for the logic, and one small behavioural module per flip-flop
-kind used (rising edge, asynchronous active-high reset to a parameter value).  The text
+kind and clock edge used (asynchronous active-high reset to a parameter value).  The text
 passes ``verilator --lint-only -Wall``: nets that nothing reads (an input the logic does not
 need, a state bit only its own flip-flop uses) are declared inside a ``lint_off UNUSED``
 pragma with a comment saying why.
@@ -18,9 +18,9 @@ from fsmsynth.version import __version__
 _PRIMITIVES = {"not", "buf", "and", "or", "nand", "nor", "xor", "xnor"}
 
 
-def cell_module_name(storage: Storage) -> str:
-    """Verilog module name of a flip-flop kind's cell."""
-    return f"{RESERVED_PREFIX}{storage.name}_ff"
+def cell_module_name(storage: Storage, edge: str = "rising") -> str:
+    """Verilog module name of a flip-flop kind's cell (``_neg`` for the falling edge)."""
+    return f"{RESERVED_PREFIX}{storage.name}_ff{'' if edge == 'rising' else '_neg'}"
 
 
 def write_verilog(netlist: Netlist, *, header: str = "") -> str:
@@ -84,9 +84,9 @@ def write_verilog(netlist: Netlist, *, header: str = "") -> str:
             lines.append(f"    assign {port} = {net};")
     lines += ["endmodule", ""]
 
-    kinds = sorted({ff.storage.name: ff.storage for ff in netlist.flip_flops}.items())
-    for _name, storage in kinds:
-        lines += _cell(storage)
+    kinds = sorted({(ff.storage.name, ff.edge): ff.storage for ff in netlist.flip_flops}.items())
+    for (_name, edge), storage in kinds:
+        lines += _cell(storage, edge)
     lines.append("`default_nettype wire")
     return "\n".join(lines) + "\n"
 
@@ -95,25 +95,28 @@ def _instance(ff: FlipFlop, netlist: Netlist) -> str:
     conns = [f".clk({netlist.clock})", f".rst({netlist.reset})"]
     conns += [f".{pin.lower()}({net})" for pin, net in ff.pins]
     conns.append(f".q({ff.q})")
-    return (f"    {cell_module_name(ff.storage)} #(.RESET_VALUE(1'b{ff.reset_value})) "
+    return (f"    {cell_module_name(ff.storage, ff.edge)} #(.RESET_VALUE(1'b{ff.reset_value})) "
             f"{ff.name} ({', '.join(conns)});")
 
 
-def _cell(storage: Storage) -> list[str]:
+def _cell(storage: Storage, edge: str) -> list[str]:
     pins = "".join(f"    input  wire {p.lower()},\n" for p in storage.pins)
-    guard = f"{cell_module_name(storage).upper()}_DEFINED"
+    name = cell_module_name(storage, edge)
+    guard = f"{name.upper()}_DEFINED"
+    clock = "posedge" if edge == "rising" else "negedge"
     return [
-        f"// {storage.title}: {storage.equation}; rising edge, asynchronous active-high reset.",
+        f"// {storage.title}: {storage.equation}; {edge} edge, asynchronous active-high "
+        "reset (clear, or set when RESET_VALUE is 1).",
         "// Guarded, so that several generated designs can be compiled together.",
         f"`ifndef {guard}",
         f"`define {guard}",
         "/* verilator lint_off DECLFILENAME */",
-        f"module {cell_module_name(storage)} #(parameter [0:0] RESET_VALUE = 1'b0) (",
+        f"module {name} #(parameter [0:0] RESET_VALUE = 1'b0) (",
         "    input  wire clk,",
         "    input  wire rst,",
         pins + "    output reg  q",
         ");",
-        "    always @(posedge clk or posedge rst)",
+        f"    always @({clock} clk or posedge rst)",
         "        if (rst) q <= RESET_VALUE;",
         f"        else     q <= {storage.verilog_next};",
         "endmodule",

@@ -1,0 +1,95 @@
+"""Timing analysis on hand-built netlists with known path delays."""
+
+from __future__ import annotations
+
+import json
+from pathlib import Path
+
+import pytest
+
+from fsmsynth import synthesize
+from fsmsynth.cli import main
+from fsmsynth.formats import read_table
+from fsmsynth.netlist import FlipFlop, Gate, Netlist
+from fsmsynth.storage import STORAGES
+from fsmsynth.timing import Delays, GateDelay, timing
+
+EXAMPLES = Path(__file__).resolve().parent.parent / "examples"
+
+
+def harris_delays() -> Delays:
+    # Harris and Harris, Digital Design and Computer Architecture, 2nd ed., 2013,
+    # section 3.5.2, Example 3.10 (timing analysis): flip-flops t_ccq = 30 ps,
+    # t_pcq = 80 ps, t_setup = 50 ps, t_hold = 60 ps; every gate t_pd = 40 ps,
+    # t_cd = 25 ps (from memory).
+    gate = GateDelay(40.0, base_min=25.0)
+    return Delays(gates={"and": gate, "or": gate, "not": gate, "buf": gate}, clock_to_q=80.0,
+                  clock_to_q_min=30.0, setup=50.0, hold=60.0, input_delay=80.0,
+                  input_delay_min=30.0)
+
+
+def circuit(short_path_buffers: int) -> Netlist:
+    """Three gates on the longest register-to-register path and one (plus buffers) on the
+    shortest, the shape of the example; every other path has at least two gates."""
+    d = STORAGES["d"]
+    gates = [Gate("g1", "and", ("qa", "qb"), "n1"), Gate("g2", "or", ("n1", "qb"), "n2"),
+             Gate("g3", "and", ("n2", "n1"), "n3"), Gate("g4", "not", ("qb",), "n4")]
+    last = "n4"
+    for i in range(short_path_buffers):
+        gates.append(Gate(f"b{i}", "buf", (last,), f"m{i}"))
+        last = f"m{i}"
+    ffs = (FlipFlop("ffa", d, 0, (("D", "n3"),), "qa", 0),
+           FlipFlop("ffb", d, 1, (("D", last),), "qb", 0))
+    return Netlist(name="ex", inputs=(), outputs=(), gates=tuple(gates), flip_flops=ffs)
+
+
+def test_setup_constraint_matches_the_worked_example() -> None:
+    # Same example: T_c >= t_pcq + 3 t_pd + t_setup = 80 + 120 + 50 = 250 ps, 4 GHz.
+    report = timing(circuit(0), harris_delays())
+    assert report.min_period == 250.0
+    assert report.max_frequency == pytest.approx(4000.0)
+    assert [s.kind for s in report.critical_path] == ["d ff", "and", "or", "and", "setup"]
+
+
+def test_hold_violation_of_the_worked_example_and_its_fix() -> None:
+    # Same example: t_ccq + t_cd = 30 + 25 = 55 ps < t_hold = 60 ps, a hold violation;
+    # Example 3.11 fixes it by delaying the short path: with one buffer, 30 + 50 = 80 ps,
+    # slack +20 ps (from memory).
+    violated = timing(circuit(0), harris_delays())
+    assert violated.worst_hold_slack == -5.0 and not violated.hold_met
+    assert [s.element for s in violated.hold_path] == ["ffb", "g4", "ffb.d"]
+    fixed = timing(circuit(1), harris_delays())
+    assert fixed.worst_hold_slack == 20.0 and fixed.hold_met
+
+
+def test_fan_in_adds_delay() -> None:
+    model = GateDelay(25.0, 8.0, base_min=12.0, per_input_min=3.0)
+    assert model.longest(2) == 33.0 and model.longest(4) == 49.0 and model.shortest(3) == 18.0
+
+
+def test_mealy_input_to_output_paths_are_reported_apart() -> None:
+    design = synthesize(read_table(EXAMPLES / "parcel_locker.toml"), "d")
+    report = timing(design)
+    assert report.input_to_output is not None and report.input_to_output > 60.0
+    moore = timing(synthesize(read_table(EXAMPLES / "greenhouse_vent.toml"), "d"))
+    assert moore.input_to_output is None
+
+
+def test_timing_cli(capsys: pytest.CaptureFixture[str], tmp_path: Path) -> None:
+    delays = tmp_path / "d.toml"
+    delays.write_text("clock_to_q = 100\nsetup = 20\n[gate.and]\nbase = 50\n")
+    spec = str(EXAMPLES / "greenhouse_vent.toml")
+    assert main(["timing", spec, "--storage", "jk", "--delays", str(delays), "--json"]) == 0
+    data = json.loads(capsys.readouterr().out)
+    assert data["critical_path"][0]["delay"] == 100.0 and data["critical_path"][-1]["kind"] == "setup"
+    assert data["min_period_ps"] == sum(s["delay"] for s in data["critical_path"])
+    assert main(["timing", spec]) == 0
+    assert "minimum clock period" in capsys.readouterr().out
+
+
+def test_falling_edge_reaches_the_verilog_and_json() -> None:
+    design = synthesize(read_table(EXAMPLES / "parcel_locker.toml"), "jk", clock_edge="falling")
+    assert "always @(negedge clk or posedge rst)" in design.verilog
+    assert "posedge clk" not in design.verilog
+    assert all(ff["edge"] == "falling" for ff in json.loads(design.json)["flip_flops"])
+    assert timing(design).edge == "falling"
