@@ -220,8 +220,10 @@ def timing(design: Any, delays: Delays | None = None) -> TimingReport:
             slack = shortest[net][0] - d.hold
             if hold is None or slack < hold[0]:
                 hold = (slack, net, f"{ff.name}.{pin.lower()}")
+    critical: tuple[PathStep, ...] = ()
+    hold_steps: tuple[PathStep, ...] = ()
     if worst is None or hold is None:
-        period, critical, hold_slack, hold_steps = 0.0, (), math.inf, ()
+        period, hold_slack = 0.0, math.inf
     else:
         period = worst[0]
         path = _trace(netlist, longest, worst[1], d, True, starts)
