@@ -18,7 +18,7 @@ from pathlib import Path
 
 sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
 
-from fsmsynth import StateTable, synthesize  # noqa: E402
+from fsmsynth import StateTable, synthesize
 
 METHODS = ("binary", "one-hot", "adjacency", "anneal")
 WORDS = ("00", "01", "10", "11")

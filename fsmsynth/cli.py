@@ -16,7 +16,7 @@ from fsmsynth.compare import DEFAULT_ENCODINGS, DEFAULT_STORAGES, compare
 from fsmsynth.convert import convert_storage
 from fsmsynth.cost import DEFAULT_WEIGHTS, CostWeights
 from fsmsynth.errors import FsmSynthError, OptionError, VerificationError
-from fsmsynth.files import write_if_changed
+from fsmsynth.files import write_bytes_if_changed, write_if_changed
 from fsmsynth.formats import read_table
 from fsmsynth.formats.delays_toml import read_delays
 from fsmsynth.formats.weights_toml import read_weights
@@ -26,6 +26,8 @@ from fsmsynth.reduce import StateMinimization, minimize_states
 from fsmsynth.storage import STORAGES
 from fsmsynth.timing import timing
 from fsmsynth.version import __version__
+from fsmsynth.writers.dot import render, suffix_format, write_netlist_dot, write_state_diagram
+from fsmsynth.writers.kmap import write_karnaugh
 from fsmsynth.writers.spec_toml import write_spec
 from fsmsynth.writers.testbench import write_testbench
 
@@ -119,6 +121,21 @@ def _parser() -> argparse.ArgumentParser:
     tim.add_argument("--clock-edge", default="rising", choices=("rising", "falling"))
     tim.add_argument("--delays", help="delay model TOML file (see README, Timing)")
     tim.add_argument("--json", action="store_true", help="print JSON")
+
+    diag = sub.add_parser("diagram", help="state diagram or netlist schematic (Graphviz DOT)")
+    diag.add_argument("spec", help="state table: .toml spec or .csv table")
+    diag.add_argument("--netlist", action="store_true",
+                      help="draw the synthesized netlist instead of the state diagram")
+    diag.add_argument("--storage", default="d", type=str, help="for --netlist (default d)")
+    diag.add_argument("--encoding", default="binary", type=str, help="for --netlist")
+    diag.add_argument("-o", "--out", help="file to write: .dot text, or .svg/.png/.pdf "
+                                          "(needs Graphviz); default: print the DOT text")
+
+    kmap = sub.add_parser("kmap", help="Karnaugh map of a flip-flop input or output")
+    kmap.add_argument("spec", help="state table: .toml spec or .csv table")
+    kmap.add_argument("signal", nargs="?", help="signal (D0, J1, an output); default: all")
+    kmap.add_argument("--storage", default="d", type=str, help="as for build (default d)")
+    kmap.add_argument("--encoding", default="binary", type=str, help="as for build")
 
     comp = sub.add_parser("compare", help="cost of every storage kind and encoding, best first")
     comp.add_argument("spec", help="state table: .toml spec or .csv table")
@@ -337,6 +354,47 @@ def _compare(args: argparse.Namespace) -> int:
     return 0
 
 
+def _diagram(args: argparse.Namespace) -> int:
+    table = read_table(args.spec)
+    if args.netlist:
+        design = synthesize(table, _storage_arg(args.storage), _encoding_arg(args.encoding))
+        text = write_netlist_dot(design.netlist)
+    else:
+        text = write_state_diagram(table)
+    if not args.out:
+        print(text, end="")
+        return 0
+    fmt = suffix_format(args.out)
+    if fmt is None:
+        changed = write_if_changed(args.out, text)
+    else:
+        try:
+            picture = render(text, fmt)
+        except FileNotFoundError as exc:
+            print(f"fsmsynth: error: {exc}; write a .dot file instead", file=sys.stderr)
+            return 2
+        changed = write_bytes_if_changed(args.out, picture)
+    print(f"{'wrote' if changed else 'unchanged'} {args.out}")
+    return 0
+
+
+def _kmap(args: argparse.Namespace) -> int:
+    table = read_table(args.spec)
+    design = synthesize(table, _storage_arg(args.storage), _encoding_arg(args.encoding))
+    functions = design.functions
+    names = [f.name for f in functions.functions]
+    if args.signal and args.signal not in names:
+        raise OptionError(f"no signal {args.signal!r}: this design has {', '.join(names)}")
+    if len(functions.variables) > 6:
+        raise OptionError(f"{len(functions.variables)} variables: Karnaugh maps go up to 6")
+    for f in functions.functions:
+        if args.signal in (None, f.name):
+            print(write_karnaugh(f, functions.variables))
+            print(f"  {design.equations[f.name]}")
+            print()
+    return 0
+
+
 def _convert(args: argparse.Namespace) -> int:
     result = convert_storage(args.target, using=args.using)
     if args.json:
@@ -379,6 +437,7 @@ def main(argv: Sequence[str] | None = None) -> int:
     args = _parser().parse_args(argv)
     try:
         commands = {"build": _build, "reduce": _reduce, "compare": _compare, "timing": _timing,
+                    "diagram": _diagram, "kmap": _kmap,
                     "convert": _convert, "check": _check}
         return commands[args.command](args)
     except FsmSynthError as exc:

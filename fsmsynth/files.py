@@ -8,14 +8,18 @@ from pathlib import Path
 
 
 def write_if_changed(path: str | Path, text: str) -> bool:
-    """Write ``text`` to ``path`` unless the file already holds exactly that.
+    """Text version of :func:`write_bytes_if_changed` (UTF-8)."""
+    return write_bytes_if_changed(path, text.encode("utf-8"))
+
+
+def write_bytes_if_changed(path: str | Path, data: bytes) -> bool:
+    """Write ``data`` to ``path`` unless the file already holds exactly that.
 
     The new content goes to a temporary file in the same folder, which then replaces the
     target in one step (``os.replace``), so a reader never sees a half-written file and an
     unchanged file keeps its timestamp.  Returns whether the file was written.
     """
     target = Path(path)
-    data = text.encode("utf-8")
     try:
         if target.read_bytes() == data:
             return False

@@ -1,0 +1,90 @@
+"""Karnaugh maps as text, with don't cares, for functions of up to 6 variables.
+
+Rows and columns follow the reflected Gray code so that adjacent cells differ in one
+variable (Karnaugh 1953).  Up to 4 variables make one map; 5 and 6 variables make 2 or 4
+maps side by side, one per value of the extra variables ("map pairs").  Cells show ``1``
+(on-set), ``0`` (off-set) or ``-`` (don't care).
+"""
+
+from __future__ import annotations
+
+from collections.abc import Sequence
+
+from fsmsynth.excite import Function
+from fsmsynth.logic.cube import Cube
+
+
+def _gray(bits: int) -> list[int]:
+    return [i ^ (i >> 1) for i in range(1 << bits)]
+
+
+def _value(function: Function, point: int) -> str:
+    if any(c.contains_point(point) for c in function.on):
+        return "1"
+    if any(c.contains_point(point) for c in function.off):
+        return "0"
+    return "-"
+
+
+def write_karnaugh(function: Function, variables: Sequence[str]) -> str:
+    """The map of ``function`` over ``variables`` (variable 0 first, as in its cubes).
+
+    Raises
+    ------
+    ValueError
+        For more than 6 variables.
+    """
+    n = len(variables)
+    if n > 6:
+        raise ValueError(f"{function.name} has {n} variables: Karnaugh maps go up to 6")
+    extra = max(0, n - 4)
+    core = n - extra
+    row_bits = core // 2
+    col_bits = core - row_bits
+    # variable order in the map: the last `extra` variables select the map
+    row_vars = list(range(row_bits))
+    col_vars = list(range(row_bits, core))
+    map_vars = list(range(core, n))
+
+    def name_of(idx: list[int]) -> str:
+        return ",".join(variables[i] for i in idx) or "-"
+
+    blocks = []
+    for sel in _gray(extra) if extra else [0]:
+        title = (" ".join(f"{variables[v]}={sel >> k & 1}" for k, v in enumerate(map_vars))
+                 if extra else "")
+        cols = _gray(col_bits)
+        header = f"{name_of(row_vars)} \\ {name_of(col_vars)}"
+        width = max(len(header), row_bits or 1)
+        lines = [title] if title else []
+        lines.append(header.ljust(width) + " " + " ".join(
+            format(c, f"0{col_bits}b")[::-1] if col_bits else "-" for c in cols))
+        for r in _gray(row_bits):
+            cells = []
+            for c in cols:
+                point = 0
+                for k, v in enumerate(row_vars):
+                    point |= (r >> k & 1) << v
+                for k, v in enumerate(col_vars):
+                    point |= (c >> k & 1) << v
+                for k, v in enumerate(map_vars):
+                    point |= (sel >> k & 1) << v
+                cells.append(_value(function, point).center(max(col_bits, 1)))
+            label = format(r, f"0{row_bits}b")[::-1] if row_bits else "-"
+            lines.append(label.ljust(width) + " " + " ".join(cells))
+        blocks.append(lines)
+    height = max(len(b) for b in blocks)
+    widths = [max(len(line) for line in b) for b in blocks]
+    out = [f"{function.name}:"]
+    for i in range(height):
+        out.append("   ".join((b[i] if i < len(b) else "").ljust(w)
+                              for b, w in zip(blocks, widths)).rstrip())
+    return "\n".join(out) + "\n"
+
+
+def cover_function(name: str, terms: Sequence[Cube], n: int) -> Function:
+    """A completely specified function from its terms, to map a result."""
+    on = tuple(terms)
+    off = tuple(Cube.minterm(p, n) for p in range(1 << n)
+                if not any(t.contains_point(p) for t in terms))
+    return Function(name=name, on=on, off=off)
