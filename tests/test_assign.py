@@ -113,3 +113,24 @@ def test_build_reports_the_search(tmp_path: Path, capsys: pytest.CaptureFixture[
     assert main(["build", spec, "--encoding", "anneal", "--seed", "3", "--budget", "40",
                  "-o", str(tmp_path)]) == 0
     assert "state assignment (anneal)" in capsys.readouterr().out
+
+
+def test_ctrl_c_returns_the_best_found_so_far(capsys: pytest.CaptureFixture[str]) -> None:
+    from fsmsynth.assign import anneal_search, exhaustive_search
+
+    table = read_table(EXAMPLES / "parcel_locker.toml")
+    calls = []
+
+    def score(codes: tuple[int, ...], width: int) -> tuple[float, int]:
+        calls.append(codes)
+        if len(calls) == 6:
+            raise KeyboardInterrupt
+        return float(sum(codes)), 0
+
+    result = exhaustive_search(score, 4, 2)  # type: ignore[arg-type]
+    assert result.interrupted and not result.proven and result.evaluated == 5
+    assert result.cost == min(sum(c) for c in calls[:5])
+    calls.clear()
+    annealed = anneal_search(score, table, 2, seed=1, budget=50)  # type: ignore[arg-type]
+    assert annealed.interrupted and annealed.codes in calls[:5]
+    assert capsys.readouterr().err == ""  # no progress bar when stderr is not a terminal
