@@ -17,6 +17,7 @@ import re
 from pathlib import Path
 
 from fsmsynth.errors import SpecFileError, TableError
+from fsmsynth.formats.text_files import read_text
 from fsmsynth.table import StateTable
 
 _DIRECTIVE = re.compile(r"#\s*(name|reset|kind)\s*:\s*(\S+)\s*$")
@@ -24,15 +25,8 @@ _DIRECTIVE = re.compile(r"#\s*(name|reset|kind)\s*:\s*(\S+)\s*$")
 
 def read_csv(path: str | Path) -> StateTable:
     """Read a CSV state table; errors carry ``file:line:``."""
-    p = Path(path)
-    try:
-        text = p.read_text(encoding="utf-8")
-    except OSError as exc:
-        raise SpecFileError(f"cannot read the file: {exc.strerror}", path=str(p)) from None
-    except UnicodeDecodeError:
-        raise SpecFileError("the file is not UTF-8 text", path=str(p)) from None
-    default_name = re.sub(r"\W", "_", p.stem)
-    return parse_csv(text, str(p), default_name=default_name)
+    default_name = re.sub(r"\W", "_", Path(path).stem)
+    return parse_csv(read_text(path), str(path), default_name=default_name)
 
 
 def parse_csv(text: str, path: str = "<string>", *, default_name: str = "machine") -> StateTable:

@@ -17,11 +17,11 @@ per_input_min = 3.0
 
 from __future__ import annotations
 
-import tomllib
 from dataclasses import fields, replace
 from pathlib import Path
 
 from fsmsynth.errors import SpecFileError
+from fsmsynth.formats.text_files import non_negative, read_toml_table
 from fsmsynth.frozen import FrozenMap
 from fsmsynth.timing import Delays, GateDelay
 
@@ -29,12 +29,7 @@ from fsmsynth.timing import Delays, GateDelay
 def read_delays(path: str | Path) -> Delays:
     """A delay model from a TOML file; keys not given keep the default value."""
     p = Path(path)
-    try:
-        data = tomllib.loads(p.read_text(encoding="utf-8"))
-    except OSError as exc:
-        raise SpecFileError(f"cannot read the file: {exc.strerror}", path=str(p)) from None
-    except tomllib.TOMLDecodeError as exc:
-        raise SpecFileError(f"not valid TOML: {exc}", path=str(p)) from None
+    data = read_toml_table(p)
     defaults = Delays()
     scalars = {f.name for f in fields(Delays)} - {"gates"}
     changes: dict[str, float] = {}
@@ -44,7 +39,7 @@ def read_delays(path: str | Path) -> Delays:
         if key not in scalars:
             raise SpecFileError(f"unknown key {key!r}: use gate, {', '.join(sorted(scalars))}",
                                 path=str(p))
-        changes[key] = _number(value, key, p)
+        changes[key] = non_negative(value, key, p)
     gates = dict(defaults.gates)
     raw_gates = data.get("gate", {})
     if not isinstance(raw_gates, dict):
@@ -55,12 +50,6 @@ def read_delays(path: str | Path) -> Delays:
             raise SpecFileError(f"[gate.{kind}] takes {', '.join(sorted(gate_keys))}",
                                 path=str(p))
         base = gates.get(kind, GateDelay(0.0))
-        gates[kind] = replace(base, **{k: _number(v, f"gate.{kind}.{k}", p)
+        gates[kind] = replace(base, **{k: non_negative(v, f"gate.{kind}.{k}", p)
                                        for k, v in spec.items()})
     return replace(defaults, gates=FrozenMap(gates), **changes)
-
-
-def _number(value: object, where: str, path: Path) -> float:
-    if isinstance(value, bool) or not isinstance(value, (int, float)) or value < 0:
-        raise SpecFileError(f"{where} must be a number >= 0, not {value!r}", path=str(path))
-    return float(value)

@@ -12,6 +12,7 @@ from pathlib import Path
 from typing import Any
 
 from fsmsynth.errors import SpecFileError, TableError
+from fsmsynth.formats.text_files import read_text
 from fsmsynth.table import StateTable
 
 KEYS = ("name", "kind", "inputs", "outputs", "reset", "states", "rows", "state_outputs")
@@ -26,14 +27,7 @@ def read_spec(path: str | Path) -> StateTable:
     SpecFileError
         With ``file:line:`` first in the message.
     """
-    p = Path(path)
-    try:
-        text = p.read_text(encoding="utf-8")
-    except OSError as exc:
-        raise SpecFileError(f"cannot read the file: {exc.strerror}", path=str(p)) from None
-    except UnicodeDecodeError:
-        raise SpecFileError("the file is not UTF-8 text", path=str(p)) from None
-    return parse_spec(text, str(p))
+    return parse_spec(read_text(path), str(path))
 
 
 def parse_spec(text: str, path: str = "<string>") -> StateTable:

@@ -14,11 +14,11 @@ jk = 9.0
 
 from __future__ import annotations
 
-import tomllib
 from pathlib import Path
 
 from fsmsynth.cost import GATE_KINDS, CostWeights
 from fsmsynth.errors import SpecFileError
+from fsmsynth.formats.text_files import non_negative, read_toml_table
 from fsmsynth.frozen import FrozenMap
 from fsmsynth.storage import STORAGES
 
@@ -26,12 +26,7 @@ from fsmsynth.storage import STORAGES
 def read_weights(path: str | Path) -> CostWeights:
     """Cost weights from a TOML file; every key is optional."""
     p = Path(path)
-    try:
-        data = tomllib.loads(p.read_text(encoding="utf-8"))
-    except OSError as exc:
-        raise SpecFileError(f"cannot read the file: {exc.strerror}", path=str(p)) from None
-    except tomllib.TOMLDecodeError as exc:
-        raise SpecFileError(f"not valid TOML: {exc}", path=str(p)) from None
+    data = read_toml_table(p)
     allowed = {"gate_input", "default_flip_flop", "gate", "flip_flop"}
     for key in data:
         if key not in allowed:
@@ -39,9 +34,7 @@ def read_weights(path: str | Path) -> CostWeights:
                                 path=str(p))
 
     def number(value: object, where: str) -> float:
-        if isinstance(value, bool) or not isinstance(value, (int, float)) or value < 0:
-            raise SpecFileError(f"{where} must be a number >= 0, not {value!r}", path=str(p))
-        return float(value)
+        return non_negative(value, where, p)
 
     def table(key: str, names: tuple[str, ...] | list[str]) -> dict[str, float]:
         raw = data.get(key, {})
