@@ -44,12 +44,6 @@ class Encoding:
         used = set(self.codes.values())
         return [c for c in range(1 << self.width) if c not in used]
 
-    def state_of(self, code: int) -> str | None:
-        """The state with this code, or ``None``."""
-        for state, c in self.codes.items():
-            if c == code:
-                return state
-        return None
 
 
 def encode(table: StateTable, method: str | Mapping[str, int | str] = "binary") -> Encoding:

@@ -12,7 +12,7 @@ V = TypeVar("V")
 class FrozenMap(Mapping[K, V], Generic[K, V]):
     """A read-only dict: equal to any mapping with the same items, usable as a dict key.
 
-    Unlike ``types.FrozenMap`` it pickles, so model values can be sent to worker
+    Unlike ``types.MappingProxyType`` it pickles, so model values can be sent to worker
     processes (``compare(..., executor=ProcessPoolExecutor())``).
     """
 

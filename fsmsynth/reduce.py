@@ -164,7 +164,7 @@ def minimize_states(table: StateTable, reachable_only: bool = True, *,
             members.setdefault(block, []).append(state)
         groups = [frozenset(m) for m in members.values()]
         return _from_partition(table, beh, groups, unreachable)
-    cover, proven = _closed_cover(beh, table.kind == "moore", time_limit)
+    cover, proven = _closed_cover(beh, time_limit)
     return _from_cover(table, beh, cover, proven, unreachable)
 
 
@@ -425,16 +425,19 @@ def prime_compatibles(beh: _Behaviour, adjacency: Sequence[int],
     return primes
 
 
-def _closed_cover(beh: _Behaviour, moore: bool, time_limit: float) -> tuple[list[int], bool]:
-    """A minimum closed cover of the states by compatibles (exact unless out of time)."""
-    del moore  # outputs were tabulated per class already
+def _closed_cover(beh: _Behaviour, time_limit: float) -> tuple[list[int], bool]:
+    """A minimum closed cover of the states by compatibles (exact unless out of time).
+
+    Moore and Mealy machines alike: ``beh`` tabulates outputs per state and input class.
+    """
     n = len(beh.states)
     deadline = time.monotonic() + time_limit
     adjacency = compatible_pairs(beh)
     try:
         primes = prime_compatibles(beh, adjacency, deadline)
     except _OutOfTime:
-        return _singletons_cover(beh, adjacency), False
+        # The original states themselves always form a closed cover.
+        return [1 << s for s in range(n)], False
     everyone = (1 << n) - 1
     best: list[list[int]] = [_greedy_cover(beh, primes, everyone)]
     by_state = [[i for i, (c, _g) in enumerate(primes) if c >> s & 1] for s in range(n)]
@@ -499,11 +502,6 @@ def _greedy_cover(beh: _Behaviour, primes: Sequence[tuple[int, frozenset[int]]],
                    key=lambda c: ((c & ~covered).bit_count(), -len(_implied(beh, c))))
         chosen.append(pick)
         covered |= pick
-
-
-def _singletons_cover(beh: _Behaviour, adjacency: Sequence[int]) -> list[int]:
-    del adjacency
-    return [1 << s for s in range(len(beh.states))]
 
 
 def _from_cover(table: StateTable, beh: _Behaviour, cover: list[int], proven: bool,

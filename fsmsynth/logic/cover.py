@@ -55,9 +55,6 @@ class Cover:
         """The terms of function ``name``."""
         return self.terms[self.names.index(name)]
 
-    def value_at(self, name: str, point: int) -> int:
-        """The function's value at the point ``point`` (bit i = variable i)."""
-        return int(any(t.contains_point(point) for t in self.of(name)))
 
 
 def _logic_weight(terms: Sequence[Sequence[Cube]], weights: CostWeights) -> tuple[

@@ -80,13 +80,6 @@ class Cube:
         """Whether the minterm ``bits`` (bit i = variable i) lies in the cube."""
         return (bits ^ self.value) & self.care == 0
 
-    def restrict(self, bits: int, mask: int) -> Cube | None:
-        """Cofactor: fix the variables in ``mask`` to ``bits``; ``None`` if that makes it 0."""
-        if (bits ^ self.value) & self.care & mask:
-            return None
-        care = self.care & ~mask
-        return Cube(care=care, value=self.value & care)
-
     def shifted(self, offset: int) -> Cube:
         """The same product over variables renumbered ``i -> i + offset``."""
         return Cube(care=self.care << offset, value=self.value << offset)
@@ -157,8 +150,3 @@ def partition(cubes: Iterable[Cube]) -> list[Cube]:
             refined.extend(sharp(cls, cube))
         classes = refined
     return sorted(classes, key=lambda c: (c.representative(), c.care))
-
-
-def covers_point(cubes: Iterable[Cube], bits: int) -> bool:
-    """Whether any of the cubes contains the minterm ``bits``."""
-    return any(c.contains_point(bits) for c in cubes)

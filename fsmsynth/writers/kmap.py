@@ -11,7 +11,6 @@ from __future__ import annotations
 from collections.abc import Sequence
 
 from fsmsynth.excite import Function
-from fsmsynth.logic.cube import Cube
 
 
 def _gray(bits: int) -> list[int]:
@@ -80,11 +79,3 @@ def write_karnaugh(function: Function, variables: Sequence[str]) -> str:
         out.append("   ".join((b[i] if i < len(b) else "").ljust(w)
                               for b, w in zip(blocks, widths)).rstrip())
     return "\n".join(out) + "\n"
-
-
-def cover_function(name: str, terms: Sequence[Cube], n: int) -> Function:
-    """A completely specified function from its terms, to map a result."""
-    on = tuple(terms)
-    off = tuple(Cube.minterm(p, n) for p in range(1 << n)
-                if not any(t.contains_point(p) for t in terms))
-    return Function(name=name, on=on, off=off)
