@@ -16,6 +16,7 @@ Points are ints with bit ``i`` = variable ``i``.
 
 from __future__ import annotations
 
+import math
 from collections.abc import Iterable, Sequence
 from dataclasses import dataclass
 
@@ -105,7 +106,10 @@ def prime_implicants(n: int, care_sets: Sequence[set[int]]) -> list[tuple[Cube, 
             if key not in dominated:
                 primes.append((Cube(care=key[0], value=key[1]), tag))
         level = merged
-    return _drop_dominated(primes)
+    # With one output the tabular method yields exactly the primes; with several, a cube
+    # can be inside a larger one whose tag grew along another merge chain.
+    return _drop_dominated(primes) if len(care_sets) > 1 else sorted(
+        primes, key=lambda p: (p[0].care, p[0].value, p[1]))
 
 
 def _drop_dominated(primes: list[tuple[Cube, int]]) -> list[tuple[Cube, int]]:
@@ -171,12 +175,66 @@ def _reduce(rows: list[list[int]], weights: Sequence[int]) -> tuple[list[list[in
         table = reduced
 
 
+SMALL_CORE = 40
+"""Cyclic cores with at most this many columns are solved by branch and bound here;
+larger ones go to the integer-programming solver."""
+
+
+def _branch_and_bound(rows: list[list[int]], weights: Sequence[int],
+                      node_limit: int = 20000) -> set[int] | None:
+    """Exact minimum-weight cover of a small core, or ``None`` past ``node_limit`` nodes.
+
+    Branches on the row with the fewest columns; bounds with a greedy set of pairwise
+    disjoint rows, each needing at least its cheapest column.
+    """
+    best_cost = [math.inf]
+    best_cover: list[list[int]] = []
+    nodes = [0]
+
+    def bound(left: list[frozenset[int]]) -> float:
+        used: set[int] = set()
+        total = 0.0
+        for r in sorted(left, key=len):
+            if not r & used:
+                used |= r
+                total += min(weights[j] for j in r)
+        return total
+
+    def search(left: list[frozenset[int]], chosen: list[int], cost: float) -> bool:
+        nodes[0] += 1
+        if nodes[0] > node_limit:
+            return False
+        if not left:
+            if cost < best_cost[0]:
+                best_cost[0] = cost
+                best_cover[:] = [list(chosen)]
+            return True
+        if cost + bound(left) >= best_cost[0]:
+            return True
+        row = min(left, key=len)
+        for j in sorted(row, key=lambda c: (weights[c], c)):
+            rest = [r for r in left if j not in r]
+            if not search(rest, [*chosen, j], cost + weights[j]):
+                return False
+        return True
+
+    if not search([frozenset(r) for r in rows], [], 0.0):
+        return None
+    assert best_cover
+    return set(best_cover[0])
+
+
 def _solve_cover(rows: list[list[int]], weights: Sequence[int],
                  time_limit: float) -> tuple[set[int], bool, float]:
     """Minimum-weight set of columns hitting every row: (chosen, proven, lower bound)."""
     rows, chosen = _reduce(rows, weights)
     if not rows:
         return chosen, True, float(sum(weights[j] for j in chosen))
+    if len({j for r in rows for j in r}) <= SMALL_CORE:
+        picked = _branch_and_bound(rows, weights)
+        if picked is not None:
+            total = float(sum(weights[j] for j in chosen | picked))
+            return chosen | picked, True, total
     columns = sorted({j for r in rows for j in r})
     index = {j: i for i, j in enumerate(columns)}
     data, row_ix, col_ix = [], [], []
