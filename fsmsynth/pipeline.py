@@ -260,11 +260,13 @@ def _per_bit(storage: StorageChoice, width: int) -> tuple[Storage, ...]:
 def _cheapest_per_bit(table: StateTable, codes: Encoding, unused: str, weights: CostWeights,
                       logic: str) -> tuple[Storage, ...]:
     """For each state bit, the kind whose own pin logic (minimized alone) costs least."""
+    excited = {kind.name: excite(table, codes, (kind,) * codes.width, unused=unused)
+               for kind in STORAGES.values()}
     choice = []
     for bit in range(codes.width):
         best: tuple[float, str] | None = None
         for kind in STORAGES.values():
-            functions = excite(table, codes, (kind,) * codes.width, unused=unused)
+            functions = excited[kind.name]
             pins = {f"{p}{bit}" for p in kind.pins}
             own = LogicFunctions(
                 variables=functions.variables,
