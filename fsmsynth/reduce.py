@@ -24,8 +24,12 @@ import time
 from collections import deque
 from collections.abc import Iterator, Mapping, Sequence
 from dataclasses import dataclass
+from typing import Any
 
-from fsmsynth.check import reachable_states
+import numpy as np
+from scipy.sparse import csr_matrix
+from scipy.sparse.csgraph import breadth_first_order
+
 from fsmsynth.frozen import FrozenMap
 from fsmsynth.logic.cube import Cube, partition
 from fsmsynth.table import StateTable
@@ -77,6 +81,30 @@ class StateMinimization:
 
 
 @dataclass(frozen=True, slots=True)
+class _Tabulation:
+    """The machine over the input classes its rows distinguish, as arrays.
+
+    ``next_state[s, a]`` is the next state of state ``s`` under input class ``a`` (-1 where
+    unspecified); ``output_id[s, a]`` indexes ``output_texts`` (the output cube, ``-`` where
+    unspecified).  Rows are tabulated with array operations, so a machine of 10^5 states
+    costs a few passes over its rows.
+    """
+
+    states: tuple[str, ...]
+    kept: np.ndarray
+    classes: tuple[Cube, ...]
+    next_state: np.ndarray
+    output_id: np.ndarray
+    output_texts: tuple[str, ...]
+
+    @property
+    def complete(self) -> bool:
+        used = np.unique(self.output_id)
+        return bool((self.next_state >= 0).all()) and all(
+            "-" not in self.output_texts[i] for i in used.tolist())
+
+
+@dataclass(frozen=True, slots=True)
 class _Behaviour:
     """The machine over input classes: next[s][a] (-1 = don't care) and outputs per (s, a)."""
 
@@ -85,39 +113,108 @@ class _Behaviour:
     next: tuple[tuple[int, ...], ...]
     outputs: tuple[tuple[str, ...], ...]
 
-    @property
-    def complete(self) -> bool:
-        return all(n >= 0 for row in self.next for n in row) and all(
-            "-" not in o for row in self.outputs for o in row)
+    @classmethod
+    def of(cls, tab: _Tabulation) -> _Behaviour:
+        texts = tab.output_texts
+        return cls(states=tab.states, classes=tab.classes,
+                   next=tuple(map(tuple, tab.next_state.tolist())),
+                   outputs=tuple(tuple(texts[i] for i in row) for row in tab.output_id.tolist()))
 
 
-def _behaviour(table: StateTable, states: Sequence[str]) -> _Behaviour:
-    """Tabulate the states over the input classes the rows distinguish."""
-    index = {s: i for i, s in enumerate(states)}
-    classes = partition(Cube.from_string(r[1]) for r in table.rows if r[0] in index)
-    n_out = len(table.outputs)
-    nxt = [[-1] * len(classes) for _ in states]
-    outs = [[["-"] * n_out for _ in classes] for _ in states]
-    inside: dict[str, list[int]] = {}
-    for state, cube_text, row_next, row_out in table.rows:
-        s = index.get(state)
-        if s is None:
-            continue
-        if cube_text not in inside:
-            cube = Cube.from_string(cube_text)
-            inside[cube_text] = [a for a, cls in enumerate(classes) if cube.contains(cls)]
-        specified = [(o, ch) for o, ch in enumerate(row_out or "") if ch != "-"]
-        for a in inside[cube_text]:
-            if row_next is not None:
-                nxt[s][a] = index[row_next]
-            for o, ch in specified:
-                outs[s][a][o] = ch
+@dataclass(frozen=True, slots=True)
+class _RowArrays:
+    """The rows of a table as arrays: present and next state (index, -1 for none), input cube
+    and output cube (indices into ``cubes`` and ``outputs``)."""
+
+    present: np.ndarray
+    next: np.ndarray
+    cube: np.ndarray
+    output: np.ndarray
+    cubes: tuple[str, ...]
+    outputs: tuple[str, ...]
+
+    @classmethod
+    def of(cls, table: StateTable) -> _RowArrays:
+        count = len(table.rows)
+        index: dict[str | None, int] = {s: i for i, s in enumerate(table.states)}
+        index[None] = -1
+        present = [r[0] for r in table.rows]
+        cube = [r[1] for r in table.rows]
+        nxt = [r[2] for r in table.rows]
+        out = [r[3] for r in table.rows]
+        cube_id = {c: i for i, c in enumerate(dict.fromkeys(cube))}
+        blank = "-" * len(table.outputs)
+        texts = list(dict.fromkeys(o or blank for o in (blank, *out)))
+        output_id: dict[str | None, int] = {o: i for i, o in enumerate(texts)}
+        output_id[None] = 0
+        def column(values: Sequence[object], ids: Mapping[Any, int]) -> np.ndarray:
+            return np.fromiter(map(ids.__getitem__, values), dtype=np.int64, count=count)
+        return cls(present=column(present, index), next=column(nxt, index),
+                   cube=column(cube, cube_id), output=column(out, output_id),
+                   cubes=tuple(cube_id), outputs=tuple(texts))
+
+
+def _tabulate(table: StateTable, rows: _RowArrays, kept: np.ndarray) -> _Tabulation:
+    """Tabulate the states where ``kept`` is set over the input classes their rows distinguish.
+
+    ``kept`` must be closed under specified transitions (all states, or the reachable ones).
+    """
+    states = tuple(s for s, k in zip(table.states, kept.tolist()) if k)
+    renumber = np.cumsum(kept) - 1
+    chosen = kept[rows.present]
+    present = renumber[rows.present[chosen]]
+    nxt = rows.next[chosen]
+    nxt = np.where(nxt >= 0, renumber[nxt], -1)
+    used, row_cube = np.unique(rows.cube[chosen], return_inverse=True)
+    row_cube = row_cube.reshape(-1)
+    cubes = [Cube.from_string(rows.cubes[c]) for c in used.tolist()]
+    classes = partition(cubes)
+    inside = [[a for a, cls in enumerate(classes) if cube.contains(cls)] for cube in cubes]
+    n, k = len(states), len(classes)
+    # Expand every row into the (state, input class) cells it covers.
+    sizes = np.array([len(x) for x in inside], dtype=np.int64)
+    offsets = np.cumsum(sizes) - sizes
+    flat = np.array([a for x in inside for a in x], dtype=np.int64)
+    per_row = sizes[row_cube]
+    cell_row = np.repeat(np.arange(per_row.size, dtype=np.int64), per_row)
+    within = np.arange(cell_row.size, dtype=np.int64) - np.repeat(np.cumsum(per_row) - per_row,
+                                                                  per_row)
+    cell_class = flat[offsets[row_cube][cell_row] + within]
+    cell_state = present[cell_row]
+    next_state = np.full((n, k), -1, dtype=np.int64)
+    cell_next = nxt[cell_row]
+    given = cell_next >= 0
+    next_state[cell_state[given], cell_class[given]] = cell_next[given]
+    texts = list(rows.outputs)
+    out_ids = {t: i for i, t in enumerate(texts)}  # texts are distinct, texts[0] all '-'
     if table.kind == "moore":
-        for state in states:
-            outs[index[state]] = [list(table.output_cube_of(state)) for _ in classes]
-    return _Behaviour(states=tuple(states), classes=tuple(classes),
-                      next=tuple(tuple(r) for r in nxt),
-                      outputs=tuple(tuple("".join(o) for o in row) for row in outs))
+        per_state = [out_ids.setdefault(table.output_cube_of(s), len(out_ids)) for s in states]
+        output_id = np.repeat(np.array(per_state, dtype=np.int64).reshape(n, 1), k, axis=1)
+    else:
+        row_out = rows.output[chosen]
+        cell = cell_state * k + cell_class
+        output_id = np.zeros(n * k, dtype=np.int64)  # 0 is the all-don't-care cube
+        output_id[cell] = row_out[cell_row]
+        # A cell covered by several rows merges their specified output bits, in row order.
+        shared = np.nonzero(np.bincount(cell, minlength=n * k)[cell] > 1)[0]
+        merged: dict[int, list[str]] = {}
+        for i in shared.tolist():
+            merged.setdefault(int(cell[i]), []).append(texts[row_out[cell_row[i]]])
+        for c, outs in merged.items():
+            output_id[c] = out_ids.setdefault(_merge(outs), len(out_ids))
+        output_id = output_id.reshape(n, k)
+    return _Tabulation(states=states, kept=kept, classes=tuple(classes), next_state=next_state,
+                       output_id=output_id, output_texts=tuple(out_ids))
+
+
+def _reachable(rows: _RowArrays, n: int, start: int) -> np.ndarray:
+    """Mask of the states reachable from ``start`` through specified transitions."""
+    given = rows.next >= 0
+    graph = csr_matrix((np.ones(int(given.sum()), dtype=np.int8),
+                        (rows.present[given], rows.next[given])), shape=(n, n))
+    mask = np.zeros(n, dtype=bool)
+    mask[breadth_first_order(graph, start, directed=True, return_predecessors=False)] = True
+    return mask
 
 
 def minimize_states(table: StateTable, reachable_only: bool = True, *,
@@ -141,9 +238,9 @@ def minimize_states(table: StateTable, reachable_only: bool = True, *,
 
     Notes
     -----
-    Completely specified: Hopcroft's refinement, O(k n log n) for n states and k input
-    classes.  Incompletely specified: exponential in the worst case (the problem is
-    NP-hard), bounded by ``time_limit``.
+    Completely specified: partition refinement in O(k n log n) for n states and k input
+    classes (see :func:`_refine`).  Incompletely specified: exponential in the worst case
+    (the problem is NP-hard), bounded by ``time_limit``.
 
     Examples
     --------
@@ -154,57 +251,111 @@ def minimize_states(table: StateTable, reachable_only: bool = True, *,
     >>> r.table.states, sorted(r.classes["b"])
     (('a', 'b'), ['b', 'c'])
     """
-    states = reachable_states(table) if reachable_only else table.states
-    kept = set(states)
-    unreachable = tuple(s for s in table.states if s not in kept)
-    beh = _behaviour(table, states)
-    if beh.complete:
-        members: dict[int, list[int]] = {}
-        for state, block in enumerate(_hopcroft(beh, table.kind == "moore")):
-            members.setdefault(block, []).append(state)
-        groups = [frozenset(m) for m in members.values()]
-        return _from_partition(table, beh, groups, unreachable)
+    rows = _RowArrays.of(table)
+    kept = np.ones(len(table.states), dtype=bool)
+    if reachable_only:
+        kept = _reachable(rows, len(table.states), table.states.index(table.reset))
+    unreachable = tuple(s for s, k in zip(table.states, kept.tolist()) if not k)
+    tab = _tabulate(table, rows, kept)
+    if tab.complete:
+        if table.kind == "moore":
+            initial = _dense(tab.output_id[:, 0])
+        else:
+            initial = _dense(tab.output_id[:, 0]) if tab.output_id.shape[1] else _dense(
+                np.zeros(len(tab.states), dtype=np.int64))
+            for a in range(1, tab.output_id.shape[1]):
+                initial = _pair_rank(initial, tab.output_id[:, a])
+        return _from_partition(table, rows, tab, _refine(tab.next_state, initial), unreachable)
+    beh = _Behaviour.of(tab)
     cover, proven = _closed_cover(beh, time_limit)
     return _from_cover(table, beh, cover, proven, unreachable)
 
 
-# --- completely specified: Hopcroft -------------------------------------------------------
+# --- completely specified: Moore rounds, then Hopcroft ------------------------------------
 
-def _hopcroft(beh: _Behaviour, moore: bool) -> list[int]:
-    """Block number of each state in the coarsest partition compatible with outputs and moves.
+def _dense(values: np.ndarray) -> np.ndarray:
+    """Renumber ``values`` 0, 1, ... in increasing order of value."""
+    return np.unique(values, return_inverse=True)[1].reshape(-1).astype(np.int64)
 
-    Array-based refinement: the states of a block are contiguous in ``elems``; marking a
-    state moves it to the front of its block, and a block with some but not all states
-    marked splits in two.  Splitters are processed with the smaller-half rule, which
-    gives the O(k n log n) bound.
+
+def _pair_rank(first: np.ndarray, second: np.ndarray) -> np.ndarray:
+    """Dense numbers of the pairs (first[i], second[i]), both non-negative."""
+    return _dense(first * (int(second.max(initial=0)) + 1) + second)
+
+
+def _refine(next_state: np.ndarray, initial: np.ndarray) -> np.ndarray:
+    """Block of each state in the coarsest partition that refines ``initial`` and is closed
+    under the moves (the state-equivalence classes when ``initial`` groups equal outputs).
+
+    Two phases with one result.  Moore's rounds (each block splits by the blocks of its
+    next states) run as whole-array operations while they split many blocks; on a typical
+    machine they reach the fixed point in a few rounds.  When two rounds in a row split
+    little (a chain-like machine, where rounds would go on n times), or after a bounded
+    number of rounds, Hopcroft's worklist refinement takes over from the partition reached,
+    so the whole stays O(k n log n).
+
+    References
+    ----------
+    Moore, E. F., "Gedanken-experiments on sequential machines", *Automata Studies*,
+    Princeton, 1956.  Hopcroft, J. E., "An n log n algorithm for minimizing states in a
+    finite automaton", *Theory of Machines and Computations*, Academic Press, 1971.
     """
-    n, k = len(beh.states), len(beh.classes)
-    signature: dict[tuple[str, ...], int] = {}
-    # Moore outputs are the same under every input class: the first one is the signature.
-    first = [signature.setdefault(beh.outputs[s][:1] if moore else beh.outputs[s], len(signature))
-             for s in range(n)]
-    elems = sorted(range(n), key=lambda s: first[s])
+    n, k = next_state.shape
+    block = initial
+    count = int(block.max(initial=-1)) + 1
+    small_rounds = 0
+    for _ in range(_MOORE_ROUNDS):
+        key = block
+        for a in range(k):
+            key = _pair_rank(key, block[next_state[:, a]])
+        new_count = int(key.max(initial=-1)) + 1
+        if new_count == count:
+            return block
+        small_rounds = small_rounds + 1 if new_count - count <= n // 1000 + 1 else 0
+        block, count = key, new_count
+        if small_rounds == 2:
+            break
+    return np.array(_hopcroft(next_state, block.tolist(), count), dtype=np.int64)
+
+
+_MOORE_ROUNDS = 24
+
+
+def _hopcroft(next_state: np.ndarray, initial: list[int], count: int) -> list[int]:
+    """Hopcroft's refinement of the partition ``initial`` (blocks 0 .. count-1).
+
+    Array-based: the states of a block are contiguous in ``elems``; marking a state moves
+    it to the front of its block, and a block with some but not all states marked splits in
+    two.  Splitters are processed with the smaller-half rule, which gives the O(k n log n)
+    bound.  Every initial block but the largest starts on the worklist, which is correct
+    for any starting partition coarser than the result.
+    """
+    n, k = next_state.shape
+    elems = sorted(range(n), key=initial.__getitem__)
     loc = [0] * n
     for i, s in enumerate(elems):
         loc[s] = i
-    block_of = first[:]
-    start: list[int] = []
-    end: list[int] = []
+    block_of = initial[:]
+    start = [0] * count
+    end = [0] * count
     for i, s in enumerate(elems):
-        if i == 0 or block_of[s] != block_of[elems[i - 1]]:
-            start.append(i)
-            end.append(i)
-        end[-1] = i + 1
-    inverse = [[[] for _ in range(n)] for _ in range(k)]  # type: list[list[list[int]]]
-    for s in range(n):
-        for a in range(k):
-            inverse[a][beh.next[s][a]].append(s)
-    marked = [0] * len(start)
+        b = block_of[s]
+        if i == 0 or b != block_of[elems[i - 1]]:
+            start[b] = i
+        end[b] = i + 1
+    # Predecessors of t under class a: pred[a][offset[a][t]:offset[a][t + 1]].
+    pred: list[list[int]] = []
+    offset: list[list[int]] = []
+    for a in range(k):
+        column = next_state[:, a]
+        pred.append(np.argsort(column, kind="stable").tolist())
+        offset.append(np.concatenate(([0], np.cumsum(np.bincount(column, minlength=n)))).tolist())
+    marked = [0] * count
     # Splitter (block b, input class c) is waiting when waiting_flag[b * k + c] is set.
     waiting: list[int] = []
-    waiting_flag: list[bool] = [False] * (len(start) * k)
-    largest = max(range(len(start)), key=lambda b: end[b] - start[b], default=0)
-    for b in range(len(start)):
+    waiting_flag: list[bool] = [False] * (count * k)
+    largest = max(range(count), key=lambda b: end[b] - start[b], default=0)
+    for b in range(count):
         if b != largest:
             for a in range(k):
                 waiting.append(b * k + a)
@@ -213,10 +364,10 @@ def _hopcroft(beh: _Behaviour, moore: bool) -> list[int]:
         key = waiting.pop()
         waiting_flag[key] = False
         splitter, a = divmod(key, k)
-        inv = inverse[a]
+        pred_a, offset_a = pred[a], offset[a]
         touched: list[int] = []
         for t in elems[start[splitter]:end[splitter]]:
-            for s in inv[t]:
+            for s in pred_a[offset_a[t]:offset_a[t + 1]]:
                 b = block_of[s]
                 i = loc[s]
                 j = start[b] + marked[b]
@@ -277,32 +428,51 @@ def _names(table: StateTable, beh: _Behaviour, groups: Sequence[frozenset[int]],
     return names
 
 
-def _from_partition(table: StateTable, beh: _Behaviour, groups: list[frozenset[int]],
+def _from_partition(table: StateTable, rows: _RowArrays, tab: _Tabulation, block: np.ndarray,
                     unreachable: tuple[str, ...]) -> StateMinimization:
-    """Reduced table of a completely specified machine: each class keeps its first member's rows."""
-    reset = beh.states.index(table.reset)
-    reset_group = next(g for g, members in enumerate(groups) if reset in members)
-    order = _ordered(table, beh, groups, reset_group)
-    names = _names(table, beh, groups, order)
-    group_of = {i: g for g, members in enumerate(groups) for i in members}
-    index = {s: i for i, s in enumerate(beh.states)}
-    rank = {s: i for i, s in enumerate(table.states)}
-    rows = []
-    for g in order:
-        rep = min((beh.states[i] for i in groups[g]), key=rank.__getitem__)
-        for _s, cube, nxt, out in table.rows_of(rep):
-            target = names[group_of[index[nxt]]] if nxt is not None else None
-            rows.append((names[g], cube, target, out))
-    state_outputs = None
-    if table.kind == "moore":
-        state_outputs = {names[g]: table.output_cube_of(
-            min((beh.states[i] for i in groups[g]), key=rank.__getitem__)) for g in order}
-    reduced = StateTable._derived(table, rows=rows, reset=names[reset_group],
-                                  states=[names[g] for g in order], state_outputs=state_outputs)
-    classes = {names[g]: frozenset(beh.states[i] for i in groups[g]) for g in order}
+    """Reduced table of a completely specified machine: each class keeps its first member's
+    rows (first in declaration order), named after that member; the reset's class first."""
+    n = len(tab.states)
+    count = int(block.max(initial=-1)) + 1
+    # tab.states are in declaration order, so a class's first member has its lowest index.
+    first = np.full(count, n, dtype=np.int64)
+    np.minimum.at(first, block, np.arange(n, dtype=np.int64))
+    reset = tab.states.index(table.reset)
+    order = [int(block[reset])] + [g for g in np.argsort(first, kind="stable").tolist()
+                                    if g != block[reset]]
+    first_of = first.tolist()
+    names = [tab.states[first_of[g]] for g in range(count)]
+    by_block = np.argsort(block, kind="stable").tolist()
+    bounds = np.concatenate(([0], np.cumsum(np.bincount(block, minlength=count)))).tolist()
+    member_names = [tab.states[i] for i in by_block]
+    classes = {names[g]: frozenset(member_names[bounds[g]:bounds[g + 1]]) for g in order}
+    if count == len(table.states) and table.states[0] == table.reset:
+        # Nothing merged or dropped and the reset already first: the table is its own reduction.
+        reduced = table
+    else:
+        # States that are not their class's first member, renamed to it.
+        renamed = {tab.states[i]: names[g]
+                   for i, g in enumerate(block.tolist()) if first_of[g] != i}
+        # The rows of each class's first member, classes in order, rows in table order.
+        position = np.empty(count, dtype=np.int64)
+        position[order] = np.arange(count)
+        in_tab = np.where(tab.kept, np.cumsum(tab.kept) - 1, -1)
+        present = in_tab[rows.present]
+        first_row = present >= 0
+        first_row[first_row] = first[block[present[first_row]]] == present[first_row]
+        chosen = np.nonzero(first_row)[0]
+        chosen = chosen[np.argsort(position[block[present[chosen]]], kind="stable")]
+        rows_out = [r if r[2] not in renamed else (r[0], r[1], renamed[r[2]], r[3])
+                    for r in map(table.rows.__getitem__, chosen.tolist())]
+        state_outputs = None
+        if table.kind == "moore":
+            state_outputs = {names[g]: table.output_cube_of(names[g]) for g in order}
+        reduced = StateTable._derived(table, rows=rows_out, reset=names[order[0]],
+                                      states=[names[g] for g in order],
+                                      state_outputs=state_outputs)
     return StateMinimization(table=reduced, classes=FrozenMap(classes), proven=True,
                              method="hopcroft", unreachable=unreachable,
-                             input_classes=len(beh.classes))
+                             input_classes=len(tab.classes))
 
 
 # --- incompletely specified: compatibles and a minimum closed cover -----------------------

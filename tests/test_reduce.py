@@ -225,3 +225,49 @@ def test_reset_state_comes_first(reachable_only: bool) -> None:
                ("c", ("a", "1"), ("a", "1"))], "b")
     r = minimize_states(t, reachable_only=reachable_only)
     assert r.table.states[0] == r.table.reset == "b"
+
+
+def test_chain_is_split_to_the_end() -> None:
+    # A chain s0 -> s1 -> ... -> s299 whose last state alone outputs 1: every state is
+    # distinct, but naive rounds of refinement would need 300 of them (each round tells
+    # one more state apart), so this takes the hand-over to the worklist refinement.
+    # A second chain t0.. of the same shape merges state by state into the first.
+    n = 300
+    rows = []
+    for prefix in "st":
+        for i in range(n):
+            nxt = f"{prefix}{min(i + 1, n - 1)}"
+            rows += [(f"{prefix}{i}", "-", nxt, "1" if i == n - 1 else "0")]
+    t = StateTable.from_rows(name="chain", inputs=["x"], outputs=["y"], rows=rows, reset="s0")
+    r = minimize_states(t, reachable_only=False)
+    assert len(r.table.states) == n
+    assert all(r.classes[f"s{i}"] == {f"s{i}", f"t{i}"} for i in range(n))
+    assert realizes(r.table, t) and realizes(t, r.table)
+
+
+@settings(max_examples=15)
+@given(table=state_tables(min_states=2, max_states=6, max_inputs=2, dont_cares=False),
+       copies=st.integers(20, 60), seed=st.integers(0, 10**6))
+def test_large_copies_with_unreachable_states_reduce_back(table: StateTable, copies: int,
+                                                          seed: int) -> None:
+    # Hundreds of states, some unreachable: the array tabulation, reachability and
+    # refinement must give the minimal machine and drop exactly the unreachable copies.
+    minimal = minimize_states(table).table
+    rng = random.Random(seed)
+    names = [f"q{i}" for i in range(len(minimal.states) * copies)]
+    rng.shuffle(names)
+    name = {(s, c): names[i * copies + c] for i, s in enumerate(minimal.states)
+            for c in range(copies)}
+    rows = [(name[(s, c)], cube, name[(nxt, rng.randrange(copies))], out)
+            for s, cube, nxt, out in minimal.rows for c in range(copies)]
+    state_outputs = ({name[(s, c)]: minimal.output_cube_of(s) for s in minimal.states
+                      for c in range(copies)} if minimal.kind == "moore" else None)
+    blown = StateTable.from_rows(name="big", kind=minimal.kind, inputs=minimal.inputs,
+                                 outputs=minimal.outputs, rows=rows,
+                                 reset=name[(minimal.reset, 0)],
+                                 states=sorted(names, key=lambda n: int(n[1:])),
+                                 state_outputs=state_outputs)
+    r = minimize_states(blown)
+    assert len(r.table.states) == len(minimal.states)
+    assert set(r.unreachable) == set(blown.states) - set(reachable_states(blown))
+    assert realizes(r.table, blown) and realizes(blown, r.table)
