@@ -140,3 +140,38 @@ def test_constant_functions() -> None:
     assert minimize_sop(2, on=[0, 1, 2, 3]).expression() == "1"
     for n, on in itertools.product((1, 2), ([0],)):
         assert minimize_sop(n, on=on).proven
+
+
+@pytest.mark.parametrize("seed", [0, 1, 2, 4])  # seeds whose cores exceed SMALL_CORE
+def test_large_core_matches_one_weighted_program(seed: int) -> None:
+    # 9 inputs, a third on and a third don't care: cyclic cores of 100+ columns go to the
+    # integer programs.  Reference: HiGHS (through scipy.optimize.milp) on one program
+    # whose weights fold terms and literals together, solved with a zero gap.
+    import numpy as np
+    from scipy.optimize import Bounds, LinearConstraint, milp
+    from scipy.sparse import csr_matrix
+
+    from fsmsynth.logic import exact as ex
+    n = 9
+    rng = random.Random(seed)
+    points = list(range(1 << n))
+    rng.shuffle(points)
+    on, dc = set(points[:170]), set(points[170:340])
+    primes = ex.prime_implicants(n, [on | dc])
+    literals = [c.literal_count for c, _t in primes]
+    big = sum(literals) + 1
+    core, _taken = ex._reduce(ex._cover_rows([on], primes, n), [big + x for x in literals])
+    columns = sorted({j for r in core for j in r})
+    assert len(columns) > ex.SMALL_CORE  # the case the programs exist for
+    index = {j: i for i, j in enumerate(columns)}
+    cells = [(i, index[j]) for i, r in enumerate(core) for j in r]
+    matrix = csr_matrix(([1.0] * len(cells), ([c[0] for c in cells], [c[1] for c in cells])),
+                        shape=(len(core), len(columns)))
+    reference = milp(np.array([big + literals[j] for j in columns], dtype=float),
+                     constraints=LinearConstraint(matrix, lb=1.0, ub=np.inf),
+                     integrality=np.ones(len(columns)), bounds=Bounds(0, 1),
+                     options={"disp": False, "mip_rel_gap": 0.0})
+    picked, proven, lower = ex._lexicographic_ilp(core, literals, time_limit=60.0)
+    assert proven and lower == len(picked)
+    assert big * len(picked) + sum(literals[j] for j in picked) == round(reference.fun)
+    assert all(set(r) & picked for r in core)
