@@ -36,10 +36,12 @@ from __future__ import annotations
 import itertools
 import math
 import random
+import signal
 import sys
 import time
 from collections.abc import Callable, Iterator, Sequence
-from dataclasses import dataclass
+from concurrent.futures import ProcessPoolExecutor
+from dataclasses import dataclass, field
 
 from fsmsynth.cost import CostWeights, cost_of, logic_shape
 from fsmsynth.encode import Encoding, encode
@@ -64,13 +66,15 @@ class Scorer:
     unused: str
     weights: CostWeights
     logic: str
+    memo: dict[object, tuple[tuple[Cube, ...], bool]] = field(default_factory=dict,
+                                                              compare=False, repr=False)
 
     def __call__(self, codes: Sequence[int], width: int) -> tuple[float, int]:
         encoding = Encoding(method="given", width=width,
                             codes=FrozenMap(dict(zip(self.table.states, codes))))
         kinds = self.storages(width)
         cover = minimize_logic(excite(self.table, encoding, kinds, unused=self.unused),
-                               self.weights, self.logic)
+                               self.weights, self.logic, memo=self.memo)
         counts: dict[str, int] = {}
         for s in kinds:
             counts[s.name] = counts.get(s.name, 0) + 1
@@ -131,8 +135,9 @@ def exhaustive_assignments(n: int, k: int) -> Iterator[tuple[int, ...]]:
     """Every injective assignment of n states to k-bit codes, one per class under bit
     permutations (the lexicographically smallest member)."""
     perms = [p for p in itertools.permutations(range(k)) if p != tuple(range(k))]
+    renamed = [[_permute(c, p) for c in range(1 << k)] for p in perms]
     for codes in itertools.permutations(range(1 << k), n):
-        if all(tuple(_permute(c, p) for c in codes) >= codes for p in perms):
+        if all(tuple(map(r.__getitem__, codes)) >= codes for r in renamed):
             yield codes
 
 
@@ -230,8 +235,33 @@ class SearchResult:
     interrupted: bool
 
 
-def exhaustive_search(score: Scorer, n: int, width: int) -> SearchResult:
-    """Score every assignment (or class, see the module docstring) and one-hot."""
+_CHUNK = 200
+_worker_score: Scorer | None = None
+
+
+def _start_worker(score: Scorer) -> None:
+    """Process-pool initializer: keep one scorer (and its memo) per worker; leave Ctrl-C
+    to the parent, which stops the search and keeps the best found so far."""
+    global _worker_score
+    signal.signal(signal.SIGINT, signal.SIG_IGN)
+    _worker_score = score
+
+
+def _score_chunk(chunk: Sequence[tuple[int, ...]], width: int) -> list[tuple[float, int]]:
+    assert _worker_score is not None
+    return [_worker_score(codes, width) for codes in chunk]
+
+
+def exhaustive_search(score: Scorer, n: int, width: int, jobs: int = 1) -> SearchResult:
+    """Score every assignment (or class, see the module docstring) and one-hot.
+
+    With ``jobs`` > 1, that many worker processes share the scoring, in chunks of
+    assignments; ties go to the assignment met first in the enumeration order, as in one
+    process.  (Espresso, through pyeda, can break ties between equally cheap covers
+    differently depending on what it minimized before in the same process, so a parallel
+    run can in rare cases pick another assignment of equal cost; one process, the default,
+    is reproducible run after run.)
+    """
     raw = math.perm(1 << width, n)
     candidates: Iterator[tuple[int, ...]]
     if raw <= RAW_LIMIT:
@@ -243,18 +273,36 @@ def exhaustive_search(score: Scorer, n: int, width: int) -> SearchResult:
     best: tuple[tuple[float, int], tuple[int, ...], int] | None = None
     evaluated = 0
     interrupted = False
-    try:
-        for codes in candidates:
-            value = score(codes, width)
-            evaluated += 1
-            if best is None or value < best[0]:
-                best = (value, codes, width)
-            progress.update(evaluated, best[0][0])
-        one_hot = tuple(1 << i for i in range(n))
-        value = score(one_hot, n)
+
+    def consider(codes: tuple[int, ...], value: tuple[float, int], bits: int) -> None:
+        nonlocal best, evaluated
         evaluated += 1
         if best is None or value < best[0]:
-            best = (value, one_hot, n)
+            best = (value, codes, bits)
+
+    try:
+        chunks = iter(lambda: tuple(itertools.islice(candidates, _CHUNK)), ())
+        pool = _pool(jobs, score) if jobs > 1 else None
+        if pool is None:
+            for chunk in chunks:
+                for codes in chunk:
+                    consider(codes, score(codes, width), width)
+                assert best is not None
+                progress.update(evaluated, best[0][0])
+        else:
+            with pool:
+                pending = [(chunk, pool.submit(_score_chunk, chunk, width)) for chunk in chunks]
+                try:
+                    for chunk, future in pending:
+                        for codes, value in zip(chunk, future.result()):
+                            consider(codes, value, width)
+                        assert best is not None
+                        progress.update(evaluated, best[0][0])
+                except KeyboardInterrupt:
+                    pool.shutdown(wait=False, cancel_futures=True)
+                    raise
+        one_hot = tuple(1 << i for i in range(n))
+        consider(one_hot, score(one_hot, n), n)
     except KeyboardInterrupt:
         interrupted = True
     finally:
@@ -262,6 +310,36 @@ def exhaustive_search(score: Scorer, n: int, width: int) -> SearchResult:
     assert best is not None, "interrupted before the first assignment was scored"
     return SearchResult(codes=best[1], width=best[2], cost=best[0][0], evaluated=evaluated,
                         proven=not interrupted, interrupted=interrupted)
+
+
+def _pool(jobs: int, score: Scorer) -> ProcessPoolExecutor | None:
+    """A pool of ``jobs`` scoring processes, or ``None`` where processes cannot start."""
+    try:
+        return ProcessPoolExecutor(max_workers=jobs, initializer=_start_worker,
+                                   initargs=(score,))
+    except (OSError, NotImplementedError):
+        return None
+
+
+def adjacency_search(score: Scorer, table: StateTable, width: int) -> SearchResult:
+    """The rule-based codes of :func:`adjacency_codes`, polarity chosen by the true cost.
+
+    The rules only fix Hamming distances, and complementing any set of code bits keeps
+    every distance: all 2**width such variants are equally good by the rules.  They are
+    not equally cheap (complementing a bit complements a D input's logic and moves
+    inverters), so each is scored and the cheapest kept; ties keep the uncomplemented
+    codes, with reset at all zeros.
+    """
+    codes = adjacency_codes(table, width)
+    best: tuple[tuple[float, int], tuple[int, ...]] | None = None
+    for mask in range(1 << width):
+        variant = tuple(c ^ mask for c in codes)
+        value = score(variant, width)
+        if best is None or value < best[0]:
+            best = (value, variant)
+    assert best is not None
+    return SearchResult(codes=best[1], width=width, cost=best[0][0], evaluated=1 << width,
+                        proven=False, interrupted=False)
 
 
 def anneal_search(score: Scorer, table: StateTable, width: int, seed: int,

@@ -63,6 +63,17 @@ def _weights_arg(path: str | None) -> CostWeights:
     return read_weights(path) if path else DEFAULT_WEIGHTS
 
 
+def _positive(text: str) -> int:
+    """argparse type: a whole number of at least 1."""
+    try:
+        value = int(text)
+    except ValueError:
+        value = 0
+    if value < 1:
+        raise argparse.ArgumentTypeError(f"{text!r}: give a whole number of at least 1")
+    return value
+
+
 def _list_arg(text: str) -> list[str]:
     return [part.strip() for part in text.split(",") if part.strip()]
 
@@ -84,6 +95,8 @@ def _parser() -> argparse.ArgumentParser:
                             "state=code,... (default binary)")
     build.add_argument("--seed", type=int, default=0, help="seed of the anneal search (0)")
     build.add_argument("--budget", type=int, help="steps of the anneal search (default 400)")
+    build.add_argument("--jobs", type=_positive, default=1,
+                       help="worker processes for the exhaustive search (default 1)")
     build.add_argument("--width", type=int,
                        help="code width in bits for adjacency, exhaustive and anneal")
     build.add_argument("--unused", default="dont-care", choices=UNUSED_POLICIES,
@@ -202,7 +215,7 @@ def _build(args: argparse.Namespace) -> int:
     design = synthesize(table, _storage_arg(args.storage), _encoding_arg(args.encoding),
                         unused=args.unused, minimize=not args.no_minimize, logic=args.logic,
                         weights=_weights_arg(args.weights), seed=args.seed, budget=args.budget,
-                        width=args.width, clock_edge=args.clock_edge)
+                        width=args.width, clock_edge=args.clock_edge, jobs=args.jobs)
     out = Path(args.out)
     files = {out / f"{table.name}.v": design.verilog, out / f"{table.name}.json": design.json}
     if args.testbench:

@@ -13,7 +13,7 @@ from reference import step
 from strategies import state_tables
 
 from fsmsynth import StateTable, synthesize
-from fsmsynth.assign import count_assignments, exhaustive_assignments
+from fsmsynth.assign import adjacency_codes, count_assignments, exhaustive_assignments
 from fsmsynth.cli import main
 from fsmsynth.errors import OptionError
 from fsmsynth.formats import read_table
@@ -76,10 +76,16 @@ def test_same_seed_same_codes_and_every_method_verifies(table: StateTable, seed:
         assert synthesize(table, "jk", method).verification
 
 
-def test_adjacency_keeps_reset_at_zero_and_accepts_wider_codes() -> None:
+def test_adjacency_picks_the_cheapest_polarity_of_the_rule_codes() -> None:
     table = read_table(EXAMPLES / "parcel_locker.toml")
-    design = synthesize(table, "d", "adjacency", width=3)
-    assert design.encoding.width == 3 and design.encoding.codes[table.reset] == 0
+    rule = adjacency_codes(table, 3)
+    assert rule[table.states.index(table.reset)] == 0
+    design = synthesize(table, "d", "adjacency", width=3, minimize=False)
+    codes = tuple(design.encoding.codes[s] for s in table.states)
+    masks = {c ^ r for c, r in zip(codes, rule)}
+    assert design.encoding.width == 3 and len(masks) == 1  # one complement of the rule codes
+    assert design.assignment is not None and design.assignment.evaluated == 8
+    assert design.cost.total == design.assignment.cost
     assert design.verification
     wide = synthesize(table, "d", "anneal", width=3, budget=50)
     assert wide.encoding.width == 3 and wide.verification
@@ -134,3 +140,19 @@ def test_ctrl_c_returns_the_best_found_so_far(capsys: pytest.CaptureFixture[str]
     annealed = anneal_search(score, table, 2, seed=1, budget=50)  # type: ignore[arg-type]
     assert annealed.interrupted and annealed.codes in calls[:5]
     assert capsys.readouterr().err == ""  # no progress bar when stderr is not a terminal
+
+
+def test_exhaustive_on_two_processes_finds_what_one_finds() -> None:
+    # Five states in three bits: 1120 assignments, scored in chunks by two workers.
+    rows = []
+    for i in range(5):
+        for x in "01":
+            rows.append((f"s{i}", x, f"s{(i * 2 + int(x)) % 5}", str((i + int(x)) % 2)))
+    table = StateTable.from_rows(name="five", inputs=["x"], outputs=["y"], rows=rows,
+                                 reset="s0")
+    one = synthesize(table, "jk", "exhaustive", minimize=False)
+    two = synthesize(table, "jk", "exhaustive", minimize=False, jobs=2)
+    assert one.assignment is not None and two.assignment is not None
+    assert two.assignment.evaluated == one.assignment.evaluated == 1120 + 1
+    assert two.cost.total == one.cost.total
+    assert two.verification.equivalent

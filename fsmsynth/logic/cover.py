@@ -64,24 +64,27 @@ def _logic_weight(terms: Sequence[Sequence[Cube]], weights: CostWeights) -> tupl
     The same count as :func:`fsmsynth.cost.logic_shape` and :func:`fsmsynth.cost.weigh`, in
     one pass: this runs in the inner loop of the cover choice and of the encoding searches.
     """
-    products: set[Cube] = set()
-    ors: set[tuple[Cube, ...]] = set()
+    # Terms are keyed by their (care, value) ints: hashing those is much cheaper than
+    # hashing Cube records, and this runs thousands of times per search.
+    products: set[tuple[int, int]] = set()
+    ors: set[tuple[tuple[int, int], ...]] = set()
     inverted = and_gates = and_inputs = or_inputs = literals = count = 0
     for f in terms:
         count += len(f)
         if len(f) == 1 and f[0].care == 0:
             continue
-        for t in f:
-            lits = t.care.bit_count()
+        keys = tuple((t.care, t.value) for t in f)
+        for care, value in keys:
+            lits = care.bit_count()
             literals += lits
-            if t not in products:
-                products.add(t)
-                inverted |= t.care & ~t.value
+            if (care, value) not in products:
+                products.add((care, value))
+                inverted |= care & ~value
                 if lits >= 2:
                     and_gates += 1
                     and_inputs += lits
-        if len(f) >= 2 and tuple(f) not in ors:
-            ors.add(tuple(f))
+        if len(f) >= 2 and keys not in ors:
+            ors.add(keys)
             or_inputs += len(f)
     nots = inverted.bit_count()
     gate = weights.gate
@@ -95,12 +98,15 @@ def _improve(start: list[tuple[Cube, ...]], options: Sequence[Sequence[tuple[Cub
              weights: CostWeights) -> list[tuple[Cube, ...]]:
     """Greedy descent: swap one function's cover for another option while that lowers cost."""
     current = list(start)
+    varying = [f for f, choices in enumerate(options) if len(set(choices)) > 1]
+    if not varying:
+        return current
     best = _logic_weight(current, weights)
     improved = True
     while improved:
         improved = False
-        for f, choices in enumerate(options):
-            for choice in choices:
+        for f in varying:
+            for choice in options[f]:
                 if choice == current[f]:
                     continue
                 trial = current[:f] + [choice] + current[f + 1:]
@@ -156,8 +162,25 @@ def _separate(terms: list[tuple[Cube, ...]], functions: LogicFunctions, engine: 
     return terms
 
 
+def _alone(engine: _Engine, f: Function, memo: dict[object, tuple[tuple[Cube, ...], bool]]
+           | None) -> tuple[Cube, ...]:
+    """``f`` minimized on its own, through ``memo`` when one is given."""
+    if memo is None:
+        return normal_terms(engine([f.on], [f.off])[0])
+    key = (engine.exact, engine.n, f.on, f.off)
+    if key not in memo:
+        before = engine.proven
+        engine.proven = True
+        memo[key] = (normal_terms(engine([f.on], [f.off])[0]), engine.proven)
+        engine.proven = before
+    terms, proven = memo[key]
+    engine.proven = engine.proven and proven
+    return terms
+
+
 def minimize_logic(functions: LogicFunctions, weights: CostWeights = DEFAULT_WEIGHTS,
-                   method: str = "heuristic", *, time_limit: float = 10.0) -> Cover:
+                   method: str = "heuristic", *, time_limit: float = 10.0,
+                   memo: dict[object, tuple[tuple[Cube, ...], bool]] | None = None) -> Cover:
     """Two-level covers of all functions, with shared product terms where sharing pays.
 
     Minimizes all functions together and each alone, then chooses per function between the
@@ -173,6 +196,10 @@ def minimize_logic(functions: LogicFunctions, weights: CostWeights = DEFAULT_WEI
         :data:`EXACT_AUTO_LIMIT` variables, Espresso beyond).
     time_limit:
         Seconds for each exact cover.
+    memo:
+        A dict kept across calls that remembers each function's cover minimized alone,
+        keyed by its on- and off-set.  The encoding searches pass one: the thousands of
+        assignments they score often repeat a pin's function (JK and T pins especially).
 
     References
     ----------
@@ -187,10 +214,13 @@ def minimize_logic(functions: LogicFunctions, weights: CostWeights = DEFAULT_WEI
     engine = _Engine(method, n, time_limit)
     fs: tuple[Function, ...] = functions.functions
     joint = [normal_terms(t) for t in engine([f.on for f in fs], [f.off for f in fs])]
-    alone = [normal_terms(engine([f.on], [f.off])[0]) for f in fs]
+    alone = [_alone(engine, f, memo) for f in fs]
     options = [(joint[i], alone[i]) for i in range(len(fs))]
-    candidates = [_improve(joint, options, weights), _improve(alone, options, weights)]
-    chosen = min(candidates, key=lambda c: _logic_weight(c, weights))
+    if joint == alone:
+        chosen = joint
+    else:
+        candidates = [_improve(joint, options, weights), _improve(alone, options, weights)]
+        chosen = min(candidates, key=lambda c: _logic_weight(c, weights))
     chosen = _separate(chosen, functions, engine, weights)
     return Cover(variables=functions.variables, names=tuple(f.name for f in fs),
                  terms=tuple(normal_terms(t) for t in chosen), method=method,

@@ -23,12 +23,35 @@ _CONFIG = dict(single_expand=False, remove_essential=True, force_irredundant=Tru
                unwrap_onset=True, recompute_onset=False, use_super_gasp=False)
 
 
+# Conversions are remembered: the encoding searches convert the same few cubes millions of
+# times.  Each map is emptied when it passes _REMEMBERED entries.
+_REMEMBERED = 100_000
+_positional: dict[tuple[int, int, int], tuple[int, ...]] = {}
+_cubes: dict[tuple[int, ...], Cube] = {}
+
+
 def _to_positional(cube: Cube, n: int) -> tuple[int, ...]:
-    return tuple(_FREE if not cube.care >> i & 1 else (_ONE if cube.value >> i & 1 else _ZERO)
-                 for i in range(n))
+    key = (cube.care, cube.value, n)
+    vec = _positional.get(key)
+    if vec is None:
+        if len(_positional) > _REMEMBERED:
+            _positional.clear()
+        vec = _positional[key] = tuple(
+            _FREE if not cube.care >> i & 1 else (_ONE if cube.value >> i & 1 else _ZERO)
+            for i in range(n))
+    return vec
 
 
-def _from_positional(vec: Sequence[int]) -> Cube:
+def _from_positional(vec: tuple[int, ...]) -> Cube:
+    cube = _cubes.get(vec)
+    if cube is None:
+        if len(_cubes) > _REMEMBERED:
+            _cubes.clear()
+        cube = _cubes[vec] = _parse_positional(vec)
+    return cube
+
+
+def _parse_positional(vec: Sequence[int]) -> Cube:
     care = value = 0
     for i, v in enumerate(vec):
         if v != _FREE:
