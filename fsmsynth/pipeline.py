@@ -2,10 +2,9 @@
 
 from __future__ import annotations
 
-import functools
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, replace
-from functools import cached_property
+from functools import cached_property, partial
 
 from fsmsynth.assign import (
     SEARCHES,
@@ -231,7 +230,7 @@ def _search(table: StateTable, method: str, storage: StorageChoice, unused: str,
     if k < min_width(len(table.states)):
         raise OptionError(f"width {k} is too small for {len(table.states)} states")
     # A partial of a module function, not a closure: worker processes receive the scorer.
-    kinds = functools.partial(_per_bit, "d" if storage == "best" else storage)
+    kinds = partial(_per_bit, "d" if storage == "best" else storage)
     score = Scorer(table=table, storages=kinds, unused=unused, weights=weights, logic=logic)
     if method == "adjacency":
         result = adjacency_search(score, table, k)

@@ -22,7 +22,7 @@ from __future__ import annotations
 
 import time
 from collections import deque
-from collections.abc import Iterator, Mapping, Sequence
+from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 from typing import Any
 
@@ -31,7 +31,7 @@ from scipy.sparse import csr_matrix
 from scipy.sparse.csgraph import breadth_first_order
 
 from fsmsynth.frozen import FrozenMap
-from fsmsynth.logic.cube import Cube, partition
+from fsmsynth.logic.cube import Cube, bits_of, partition
 from fsmsynth.table import StateTable
 
 
@@ -526,8 +526,8 @@ def maximal_compatibles(adjacency: Sequence[int]) -> list[int]:
             result.append(r)
             return
         pivot_from = p | x
-        pivot = max(_bits(pivot_from), key=lambda u: (adjacency[u] & p).bit_count())
-        for v in _bits(p & ~adjacency[pivot]):
+        pivot = max(bits_of(pivot_from), key=lambda u: (adjacency[u] & p).bit_count())
+        for v in bits_of(p & ~adjacency[pivot]):
             expand(r | 1 << v, p & adjacency[v], x & adjacency[v])
             p &= ~(1 << v)
             x |= 1 << v
@@ -536,19 +536,12 @@ def maximal_compatibles(adjacency: Sequence[int]) -> list[int]:
     return sorted(result, key=lambda m: (-m.bit_count(), m))
 
 
-def _bits(mask: int) -> Iterator[int]:
-    while mask:
-        low = mask & -mask
-        yield low.bit_length() - 1
-        mask ^= low
-
-
 def _implied(beh: _Behaviour, members: int) -> frozenset[int]:
     """Class set: the next-state sets a compatible implies that it does not contain itself."""
     out = set()
     for a in range(len(beh.classes)):
         nxt = 0
-        for s in _bits(members):
+        for s in bits_of(members):
             if beh.next[s][a] >= 0:
                 nxt |= 1 << beh.next[s][a]
         if nxt.bit_count() >= 2 and nxt & ~members:
@@ -577,7 +570,7 @@ def prime_compatibles(beh: _Behaviour, adjacency: Sequence[int],
     maximal = maximal_compatibles(adjacency)
     compatibles: set[int] = set()
     for m in maximal:
-        members = list(_bits(m))
+        members = list(bits_of(m))
         stack = [0]
         # every subset of a clique is a clique
         for v in members:
@@ -617,7 +610,7 @@ def _closed_cover(beh: _Behaviour, time_limit: float) -> tuple[list[int], bool]:
         # States pairwise incompatible need distinct compatibles.
         chosen = 0
         count = 0
-        for s in _bits(uncovered):
+        for s in bits_of(uncovered):
             if adjacency[s] & chosen == 0:
                 chosen |= 1 << s
                 count += 1
@@ -632,7 +625,7 @@ def _closed_cover(beh: _Behaviour, time_limit: float) -> tuple[list[int], bool]:
         if len(chosen) + lower_bound(uncovered) >= len(best[0]):
             return
         if uncovered:
-            s = min(_bits(uncovered), key=lambda v: len(by_state[v]))
+            s = min(bits_of(uncovered), key=lambda v: len(by_state[v]))
             options = by_state[s]
         else:
             need = next((i for p in chosen for i in primes[p][1]
@@ -661,7 +654,7 @@ def _greedy_cover(beh: _Behaviour, primes: Sequence[tuple[int, frozenset[int]]],
     while True:
         need = everyone & ~covered
         if need:
-            s = next(_bits(need))
+            s = next(bits_of(need))
             target = 1 << s
         else:
             target = next((i for c in chosen for i in _implied(beh, c)
@@ -677,7 +670,7 @@ def _greedy_cover(beh: _Behaviour, primes: Sequence[tuple[int, frozenset[int]]],
 def _from_cover(table: StateTable, beh: _Behaviour, cover: list[int], proven: bool,
                 unreachable: tuple[str, ...]) -> StateMinimization:
     """The reduced table of a closed cover: one state per compatible."""
-    groups = [frozenset(_bits(c)) for c in cover]
+    groups = [frozenset(bits_of(c)) for c in cover]
     reset = beh.states.index(table.reset)
     reset_group = next(g for g, members in enumerate(groups) if reset in members)
     order = _ordered(table, beh, groups, reset_group)

@@ -171,7 +171,8 @@ def test_large_core_matches_one_weighted_program(seed: int) -> None:
                      constraints=LinearConstraint(matrix, lb=1.0, ub=np.inf),
                      integrality=np.ones(len(columns)), bounds=Bounds(0, 1),
                      options={"disp": False, "mip_rel_gap": 0.0})
-    picked, proven, lower = ex._lexicographic_ilp(core, literals, time_limit=60.0)
+    picked, proven, lower = ex._lexicographic_ilp(core, literals, [big + x for x in literals],
+                                                  time_limit=60.0)
     assert proven and lower == len(picked)
     assert big * len(picked) + sum(literals[j] for j in picked) == round(reference.fun)
     assert all(set(r) & picked for r in core)

@@ -132,12 +132,9 @@ def test_reduced_machine_is_equivalent_and_minimal(table: StateTable) -> None:
     assert set().union(*r.classes.values()) == set(reachable_states(table))
 
 
-@settings(max_examples=30)
-@given(table=state_tables(min_states=2, max_states=6, max_inputs=2, dont_cares=False),
-       copies=st.integers(2, 4), seed=st.integers(0, 10**6))
-def test_copied_minimal_machine_reduces_back(table: StateTable, copies: int, seed: int) -> None:
-    minimal = minimize_states(table).table
-    rng = random.Random(seed)
+def copied(minimal: StateTable, copies: int, rng: random.Random) -> StateTable:
+    """``copies`` copies of every state under random names q0, q1, ...; each row of a copy
+    goes to a random copy of its next state.  Behaves like ``minimal`` from reset."""
     names = {(s, c): f"q{i}" for i, (s, c) in enumerate(
         rng.sample([(s, c) for s in minimal.states for c in range(copies)],
                    len(minimal.states) * copies))}
@@ -145,11 +142,19 @@ def test_copied_minimal_machine_reduces_back(table: StateTable, copies: int, see
             for s, cube, nxt, out in minimal.rows for c in range(copies)]
     state_outputs = ({names[(s, c)]: minimal.output_cube_of(s) for s in minimal.states
                       for c in range(copies)} if minimal.kind == "moore" else None)
-    blown = StateTable.from_rows(name="big", kind=minimal.kind, inputs=minimal.inputs,
-                                 outputs=minimal.outputs, rows=rows,
-                                 reset=names[(minimal.reset, 0)],
-                                 states=sorted(set(names.values()), key=lambda n: int(n[1:])),
-                                 state_outputs=state_outputs)
+    return StateTable.from_rows(name="big", kind=minimal.kind, inputs=minimal.inputs,
+                                outputs=minimal.outputs, rows=rows,
+                                reset=names[(minimal.reset, 0)],
+                                states=sorted(set(names.values()), key=lambda n: int(n[1:])),
+                                state_outputs=state_outputs)
+
+
+@settings(max_examples=30)
+@given(table=state_tables(min_states=2, max_states=6, max_inputs=2, dont_cares=False),
+       copies=st.integers(2, 4), seed=st.integers(0, 10**6))
+def test_copied_minimal_machine_reduces_back(table: StateTable, copies: int, seed: int) -> None:
+    minimal = minimize_states(table).table
+    blown = copied(minimal, copies, random.Random(seed))
     assert len(minimize_states(blown, reachable_only=False).table.states) == len(minimal.states)
 
 
@@ -253,20 +258,7 @@ def test_large_copies_with_unreachable_states_reduce_back(table: StateTable, cop
     # Hundreds of states, some unreachable: the array tabulation, reachability and
     # refinement must give the minimal machine and drop exactly the unreachable copies.
     minimal = minimize_states(table).table
-    rng = random.Random(seed)
-    names = [f"q{i}" for i in range(len(minimal.states) * copies)]
-    rng.shuffle(names)
-    name = {(s, c): names[i * copies + c] for i, s in enumerate(minimal.states)
-            for c in range(copies)}
-    rows = [(name[(s, c)], cube, name[(nxt, rng.randrange(copies))], out)
-            for s, cube, nxt, out in minimal.rows for c in range(copies)]
-    state_outputs = ({name[(s, c)]: minimal.output_cube_of(s) for s in minimal.states
-                      for c in range(copies)} if minimal.kind == "moore" else None)
-    blown = StateTable.from_rows(name="big", kind=minimal.kind, inputs=minimal.inputs,
-                                 outputs=minimal.outputs, rows=rows,
-                                 reset=name[(minimal.reset, 0)],
-                                 states=sorted(names, key=lambda n: int(n[1:])),
-                                 state_outputs=state_outputs)
+    blown = copied(minimal, copies, random.Random(seed))
     r = minimize_states(blown)
     assert len(r.table.states) == len(minimal.states)
     assert set(r.unreachable) == set(blown.states) - set(reachable_states(blown))

@@ -150,3 +150,11 @@ def partition(cubes: Iterable[Cube]) -> list[Cube]:
             refined.extend(sharp(cls, cube))
         classes = refined
     return sorted(classes, key=lambda c: (c.representative(), c.care))
+
+
+def bits_of(mask: int) -> Iterator[int]:
+    """The positions of the 1 bits of ``mask``, lowest first (sets kept as bit masks)."""
+    while mask:
+        low = mask & -mask
+        yield low.bit_length() - 1
+        mask ^= low

@@ -25,7 +25,7 @@ import numpy as np
 from scipy.optimize import Bounds, LinearConstraint, linprog, milp
 from scipy.sparse import csr_matrix, vstack
 
-from fsmsynth.logic.cube import Cube
+from fsmsynth.logic.cube import Cube, bits_of
 
 
 @dataclass(frozen=True, slots=True)
@@ -55,15 +55,8 @@ class ExactCover:
 def points_of(cubes: Iterable[Cube], n: int) -> set[int]:
     """Every point (bit i = variable i) of the union of ``cubes``.  O(size of the union)."""
     out: set[int] = set()
-    full = (1 << n) - 1
     for c in cubes:
-        free = full & ~c.care
-        sub = free
-        while True:
-            out.add(c.value | sub)
-            if sub == 0:
-                break
-            sub = (sub - 1) & free
+        out.update(_points(c, n))
     return out
 
 
@@ -146,6 +139,7 @@ def _cover_rows(on_sets: Sequence[set[int]],
 
 
 def _points(cube: Cube, n: int) -> Iterator[int]:
+    """Every point of ``cube`` over ``n`` variables."""
     free = ((1 << n) - 1) & ~cube.care
     sub = free
     while True:
@@ -194,7 +188,7 @@ def _reduce(rows: list[list[int]], weights: Sequence[int]) -> tuple[list[list[in
             if a in dominated:
                 continue
             covered = rows_of[a]
-            for i in _bits(covered):
+            for i in bits_of(covered):
                 for b in kept[i]:
                     if (rank[b] > rank[a] and b not in dominated and weights[a] <= weights[b]
                             and rows_of[b] & ~covered == 0):
@@ -203,13 +197,6 @@ def _reduce(rows: list[list[int]], weights: Sequence[int]) -> tuple[list[list[in
         if len(reduced) == len(table) and not dominated:
             return [sorted(r) for r in reduced], chosen
         table = reduced
-
-
-def _bits(mask: int) -> Iterator[int]:
-    while mask:
-        low = mask & -mask
-        yield low.bit_length() - 1
-        mask ^= low
 
 
 SMALL_CORE = 40
@@ -233,7 +220,7 @@ def _branch_and_bound(rows: list[list[int]], weights: Sequence[int],
     for i, r in enumerate(rows):
         for j in r:
             col_rows[local[j]] |= 1 << i
-    row_min = [min(weight[c] for c in _bits(m)) for m in row_cols]
+    row_min = [min(weight[c] for c in bits_of(m)) for m in row_cols]
     by_length = sorted(range(len(rows)), key=lambda i: row_cols[i].bit_count())
     best_cost = math.inf
     best: list[int] = []
@@ -259,8 +246,8 @@ def _branch_and_bound(rows: list[list[int]], weights: Sequence[int],
             return True
         if cost + bound(uncovered) >= best_cost:
             return True
-        row = min(_bits(uncovered), key=lambda i: row_cols[i].bit_count())
-        options = sorted(_bits(row_cols[row]), key=lambda c: (
+        row = min(bits_of(uncovered), key=lambda i: row_cols[i].bit_count())
+        options = sorted(bits_of(row_cols[row]), key=lambda c: (
             weight[c] / (col_rows[c] & uncovered).bit_count(), c))
         for c in options:
             chosen.append(c)
@@ -291,12 +278,12 @@ def _solve_cover(rows: list[list[int]], literals: Sequence[int],
         picked = _branch_and_bound(rows, weights)
         if picked is not None:
             return chosen | picked, True, len(chosen | picked)
-    picked, proven, lower = _lexicographic_ilp(rows, literals, time_limit)
+    picked, proven, lower = _lexicographic_ilp(rows, literals, weights, time_limit)
     return chosen | picked, proven, len(chosen) + lower
 
 
 def _lexicographic_ilp(rows: list[list[int]], literals: Sequence[int],
-                       time_limit: float) -> tuple[set[int], bool, int]:
+                       weights: Sequence[int], time_limit: float) -> tuple[set[int], bool, int]:
     """Minimum cover of a cyclic core by 0-1 integer programs (HiGHS), terms first.
 
     The linear relaxation bounds the number of terms from below; starting at its ceiling
@@ -306,7 +293,9 @@ def _lexicographic_ilp(rows: list[list[int]], literals: Sequence[int],
     random 10-input cores, this is several times faster than one program with the two
     costs folded into a single weighted objective (the relaxation is usually within one
     term of the optimum, so one or two programs are solved).
-    Returns ``(picked, proven, lower bound on the number of terms)``.
+    ``weights`` (terms first, as :func:`_solve_cover` folds them) rank the greedy cover
+    returned when time runs out.  Returns ``(picked, proven, lower bound on the number of
+    terms)``.
     """
     deadline = time.monotonic() + max(time_limit, 0.01)
     columns = sorted({j for r in rows for j in r})
@@ -341,8 +330,7 @@ def _lexicographic_ilp(rows: list[list[int]], literals: Sequence[int],
             picked = {columns[i] for i, v in enumerate(result.x) if v > 0.5}
             return picked, result.status == 0, k
         break
-    big = sum(literals) + 1
-    return _greedy(rows, [big + lit for lit in literals]), False, k
+    return _greedy(rows, weights), False, k
 
 
 def _greedy(rows: list[list[int]], weights: Sequence[int]) -> set[int]:
