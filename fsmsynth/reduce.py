@@ -258,11 +258,10 @@ def minimize_states(table: StateTable, reachable_only: bool = True, *,
     unreachable = tuple(s for s, k in zip(table.states, kept.tolist()) if not k)
     tab = _tabulate(table, rows, kept)
     if tab.complete:
-        if table.kind == "moore":
-            initial = _dense(tab.output_id[:, 0])
-        else:
-            initial = _dense(tab.output_id[:, 0]) if tab.output_id.shape[1] else _dense(
-                np.zeros(len(tab.states), dtype=np.int64))
+        # States start together when their outputs agree under every input class (there
+        # is always at least one class; Moore outputs are the same in all of them).
+        initial = _dense(tab.output_id[:, 0])
+        if table.kind == "mealy":
             for a in range(1, tab.output_id.shape[1]):
                 initial = _pair_rank(initial, tab.output_id[:, a])
         return _from_partition(table, rows, tab, _refine(tab.next_state, initial), unreachable)
