@@ -66,44 +66,64 @@ def prime_implicants(n: int, care_sets: Sequence[set[int]]) -> list[tuple[Cube, 
     Returns ``(cube, tag)`` pairs, ``tag`` having bit ``f`` set when the cube lies inside
     output ``f``'s set.  A pair is kept when no larger cube has a tag including its own.
     Cost: O(p n) dictionary operations per merging level for p implicants at that level.
+    A cube is one int here, its care mask above its ``n`` value bits.
     """
     full = (1 << n) - 1
-    level: dict[tuple[int, int], int] = {}
+    top = full << n
+    if len(care_sets) == 1:
+        return [(c, 1) for c in _single_output_primes(n, {top | m for m in care_sets[0]})]
+    level: dict[int, int] = {}
     for f, points in enumerate(care_sets):
         for m in points:
-            level[(full, m)] = level.get((full, m), 0) | 1 << f
+            level[top | m] = level.get(top | m, 0) | 1 << f
     primes: list[tuple[Cube, int]] = []
     while level:
-        merged: dict[tuple[int, int], int] = {}
-        dominated: set[tuple[int, int]] = set()
-        for (care, value), tag in level.items():
-            bits = care
+        merged: dict[int, int] = {}
+        dominated: set[int] = set()
+        for key, tag in level.items():
+            bits = (key >> n) & ~key  # cared-for variables at 0: pair from the 0 side
             while bits:
                 bit = bits & -bits
                 bits ^= bit
-                if value & bit:
-                    continue  # pair each cube with its partner once, from the 0 side
-                partner = (care, value | bit)
-                other = level.get(partner)
+                other = level.get(key | bit)
                 if other is None:
                     continue
                 common = tag & other
                 if not common:
                     continue
-                key = (care & ~bit, value)
-                merged[key] = merged.get(key, 0) | common
+                wider = key & ~(bit << n)
+                merged[wider] = merged.get(wider, 0) | common
                 if common == tag:
-                    dominated.add((care, value))
+                    dominated.add(key)
                 if common == other:
-                    dominated.add(partner)
-        for key, tag in level.items():
-            if key not in dominated:
-                primes.append((Cube(care=key[0], value=key[1]), tag))
+                    dominated.add(key | bit)
+        primes.extend((Cube(care=key >> n, value=key & full), tag)
+                      for key, tag in level.items() if key not in dominated)
         level = merged
-    # With one output the tabular method yields exactly the primes; with several, a cube
-    # can be inside a larger one whose tag grew along another merge chain.
-    return _drop_dominated(primes) if len(care_sets) > 1 else sorted(
-        primes, key=lambda p: (p[0].care, p[0].value, p[1]))
+    # With several outputs a cube can be inside a larger one whose tag grew along another
+    # merge chain.
+    return _drop_dominated(primes)
+
+
+def _single_output_primes(n: int, level: set[int]) -> list[Cube]:
+    """Quine-McCluskey merging for one output: the cubes that merge with no neighbour."""
+    full = (1 << n) - 1
+    primes: list[Cube] = []
+    while level:
+        merged: set[int] = set()
+        used: set[int] = set()
+        for key in level:
+            bits = (key >> n) & ~key
+            while bits:
+                bit = bits & -bits
+                bits ^= bit
+                if key | bit in level:
+                    merged.add(key & ~(bit << n))
+                    used.add(key)
+                    used.add(key | bit)
+        primes.extend(Cube(care=key >> n, value=key & full) for key in level - used)
+        level = merged
+    return sorted(primes, key=lambda c: (c.care, c.value))
 
 
 def _drop_dominated(primes: list[tuple[Cube, int]]) -> list[tuple[Cube, int]]:
@@ -158,28 +178,32 @@ def _reduce(rows: list[list[int]], weights: Sequence[int]) -> tuple[list[list[in
     Returns the remaining rows and the columns taken.  Sets are bit masks, and a column
     is only compared with the columns that share a row with it.
     """
-    chosen: set[int] = set()
-    table = [frozenset(r) for r in rows]
+    chosen = 0
+    # Each row as its sorted columns and as a mask of them.
+    table = {tuple(sorted(r)): sum(1 << j for j in r) for r in rows}
     while True:
-        essential = {next(iter(r)) for r in table if len(r) == 1}
+        essential = 0
+        for cols, mask in table.items():
+            if len(cols) == 1:
+                essential |= mask
         if essential:
             chosen |= essential
-            table = [r for r in table if not r & chosen]
+            table = {c: m for c, m in table.items() if not m & essential}
             continue
-        # Row dominance: keep only the minimal rows (distinct), smallest first.
-        columns = sorted(set().union(*table))
-        bit = {j: 1 << i for i, j in enumerate(columns)}
-        kept: list[frozenset[int]] = []
-        kept_masks: list[int] = []
-        for r in sorted(set(table), key=lambda r: (len(r), sorted(r))):
-            mask = sum(bit[j] for j in r)
-            if not any(k & ~mask == 0 for k in kept_masks):
-                kept.append(r)
-                kept_masks.append(mask)
+        # Row dominance: keep only the minimal rows, smallest first.  A kept row inside
+        # this one has its lowest column in this one, so only those rows are compared.
+        kept: list[tuple[int, ...]] = []
+        kept_by_low: dict[int, list[int]] = {}
+        for cols in sorted(table, key=lambda c: (len(c), c)):
+            mask = table[cols]
+            if any(k & ~mask == 0 for j in cols for k in kept_by_low.get(j, ())):
+                continue
+            kept.append(cols)
+            kept_by_low.setdefault(cols[0], []).append(mask)
         # Column dominance.
         rows_of: dict[int, int] = {}
-        for i, r in enumerate(kept):
-            for j in r:
+        for i, cols in enumerate(kept):
+            for j in cols:
                 rows_of[j] = rows_of.get(j, 0) | 1 << i
         order = sorted(rows_of, key=lambda j: (-rows_of[j].bit_count(), weights[j], j))
         rank = {j: i for i, j in enumerate(order)}
@@ -193,10 +217,12 @@ def _reduce(rows: list[list[int]], weights: Sequence[int]) -> tuple[list[list[in
                     if (rank[b] > rank[a] and b not in dominated and weights[a] <= weights[b]
                             and rows_of[b] & ~covered == 0):
                         dominated.add(b)
-        reduced = [r - dominated for r in kept] if dominated else kept
-        if len(reduced) == len(table) and not dominated:
-            return [sorted(r) for r in reduced], chosen
-        table = reduced
+        if not dominated and len(kept) == len(table):
+            return [list(c) for c in kept], set(bits_of(chosen))
+        table = {}
+        for cols in kept:
+            rest = tuple(j for j in cols if j not in dominated)
+            table[rest] = sum(1 << j for j in rest)
 
 
 SMALL_CORE = 40
