@@ -8,8 +8,10 @@ two-level minimization, cost) exactly as the final design will be built:
   section 9.? "state assignment guidelines", from memory): (1) states with the same next
   state under the same input, (2) next states of one state, (3) states with the same
   output under the same input should get adjacent codes.  The rules give pair weights
-  4, 2, 1; codes are placed greedily in the hypercube and improved by swaps to minimize
-  the weighted Hamming distance.  The logic is not synthesized during the placement.
+  4, 2, 1; codes are placed in the hypercube to minimize the weighted Hamming distance
+  (greedily, then improved by swaps, from several seeded starts).  The logic is not
+  synthesized during the placement; it only chooses among the few best placements found
+  and their bit-complemented forms, which the rules cannot tell apart.
 * ``exhaustive``: every assignment (reset anywhere) when there are at most
   :data:`RAW_LIMIT`, otherwise one per class under permuting the state bits; each is
   synthesized, and one-hot is tried too.  Renaming state bits renames the logic, so the
@@ -18,8 +20,8 @@ two-level minimization, cost) exactly as the final design will be built:
   of the true cost (it complements D-input logic and moves inverters), so assignments are
   never merged under it.
 * ``anneal``: simulated annealing over assignments (swap two states' codes, or move a
-  state to an unused code), seeded and bounded by a step budget, started from the better
-  of binary and adjacency.
+  state to an unused code), seeded and bounded by a step budget, started from the
+  cheaper of binary and the ``adjacency`` result.
 
 References
 ----------
@@ -41,7 +43,7 @@ import sys
 import time
 from collections.abc import Callable, Iterator, Sequence
 from concurrent.futures import ProcessPoolExecutor
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 
 from fsmsynth.cost import CostWeights, cost_of, logic_shape
 from fsmsynth.encode import Encoding, encode
@@ -176,27 +178,80 @@ def adjacency_weights(table: StateTable) -> dict[tuple[int, int], int]:
     return weights
 
 
+RULE_EMBEDDINGS = 8
+"""``adjacency`` scores this many distinct rule-optimal embeddings, each in every polarity."""
+RULE_STARTS = 20
+"""Seeded random placements descended beside the greedy one to find those embeddings."""
+
+
 def adjacency_codes(table: StateTable, width: int) -> tuple[int, ...]:
-    """Codes placing heavily weighted pairs at small Hamming distance; reset gets 0."""
+    """Codes placing heavily weighted pairs at small Hamming distance; reset gets 0.
+
+    States are placed greedily, most weighted first, each at the free code nearest its
+    placed partners; then :func:`_descend` improves the placement.
+    """
     n = len(table.states)
-    weights = adjacency_weights(table)
-    w = [[0] * n for _ in range(n)]
-    for (a, b), v in weights.items():
-        w[a][b] = w[b][a] = v
+    neighbours = _neighbours(adjacency_weights(table), n)
     reset = table.states.index(table.reset)
-    order = [reset] + sorted((s for s in range(n) if s != reset), key=lambda s: (-sum(w[s]), s))
-    codes: dict[int, int] = {reset: 0}
+    order = [reset] + sorted((s for s in range(n) if s != reset),
+                             key=lambda s: (-sum(v for _t, v in neighbours[s]), s))
+    codes = [-1] * n
+    codes[reset] = 0
     free = set(range(1, 1 << width))
     for s in order[1:]:
-        best = min(sorted(free), key=lambda c: sum(w[s][t] * (c ^ codes[t]).bit_count()
-                                                  for t in codes))
+        best = min(sorted(free), key=lambda c: sum(v * (c ^ codes[t]).bit_count()
+                                                  for t, v in neighbours[s] if codes[t] >= 0))
         codes[s] = best
         free.discard(best)
+    return tuple(_descend(codes, neighbours, width, reset)[1])
 
-    def spread(assign: dict[int, int]) -> int:
-        return sum(v * (assign[a] ^ assign[b]).bit_count() for (a, b), v in weights.items())
 
-    current = spread(codes)
+def adjacency_embeddings(table: StateTable, width: int, count: int = RULE_EMBEDDINGS,
+                         starts: int = RULE_STARTS) -> list[tuple[int, ...]]:
+    """Up to ``count`` distinct assignments of least weighted Hamming spread, least first.
+
+    The rules fix only distances, and a weighted embedding in the hypercube has many local
+    optima of nearly equal spread whose logic costs differ.  Besides the greedy placement
+    of :func:`adjacency_codes`, ``starts`` random placements (seed 0, so the result is
+    deterministic) are descended; the local optima are told apart up to permuting bits
+    (reset stays at code 0, which removes complementing) and the least spread kept.
+    """
+    n = len(table.states)
+    neighbours = _neighbours(adjacency_weights(table), n)
+    reset = table.states.index(table.reset)
+    rng = random.Random(0)
+    found: dict[tuple[int, ...], tuple[int, tuple[int, ...]]] = {}
+    placements = [list(adjacency_codes(table, width))]
+    for _ in range(starts):
+        others = rng.sample(range(1, 1 << width), n - 1)
+        placements.append(others[:reset] + [0] + others[reset:])
+    for codes in placements:
+        spread, local = _descend(codes, neighbours, width, reset)
+        key = _up_to_bit_permutation(tuple(local), width)
+        if key not in found or spread < found[key][0]:
+            found[key] = (spread, tuple(local))
+    ranked = sorted(found.items(), key=lambda item: (item[1][0], item[0]))
+    return [codes for _key, (_spread, codes) in ranked[:count]]
+
+
+def _neighbours(weights: dict[tuple[int, int], int], n: int) -> list[list[tuple[int, int]]]:
+    out: list[list[tuple[int, int]]] = [[] for _ in range(n)]
+    for (a, b), v in sorted(weights.items()):
+        out[a].append((b, v))
+        out[b].append((a, v))
+    return out
+
+
+def _descend(codes: list[int], neighbours: list[list[tuple[int, int]]], width: int,
+             reset: int) -> tuple[int, list[int]]:
+    """First-improvement descent of the weighted spread: swap two states' codes, or move a
+    state to an unused code, until neither helps.  Returns ``(spread, codes)``."""
+    codes = list(codes)
+    n = len(codes)
+
+    def pull(a: int, code: int, skip: int) -> int:
+        return sum(v * (code ^ codes[t]).bit_count() for t, v in neighbours[a] if t != skip)
+
     improved = True
     while improved:
         improved = False
@@ -206,21 +261,27 @@ def adjacency_codes(table: StateTable, width: int) -> tuple[int, ...]:
             for b in range(a + 1, n):
                 if b == reset:
                     continue
-                codes[a], codes[b] = codes[b], codes[a]
-                trial = spread(codes)
-                if trial < current:
-                    current, improved = trial, True
-                else:
-                    codes[a], codes[b] = codes[b], codes[a]
-            for c in sorted(set(range(1 << width)) - set(codes.values())):
-                old = codes[a]
-                codes[a] = c
-                trial = spread(codes)
-                if trial < current:
-                    current, improved = trial, True
-                else:
-                    codes[a] = old
-    return tuple(codes[i] for i in range(n))
+                ca, cb = codes[a], codes[b]
+                delta = (pull(a, cb, b) - pull(a, ca, b)) + (pull(b, ca, a) - pull(b, cb, a))
+                if delta < 0:
+                    codes[a], codes[b] = cb, ca
+                    improved = True
+            for c in sorted(set(range(1 << width)) - set(codes)):
+                if pull(a, c, -1) < pull(a, codes[a], -1):
+                    codes[a] = c
+                    improved = True
+    spread = sum(v * (codes[a] ^ codes[t]).bit_count()
+                 for a in range(n) for t, v in neighbours[a] if t > a)
+    return spread, codes
+
+
+def _up_to_bit_permutation(codes: tuple[int, ...], width: int) -> tuple[int, ...]:
+    """The least relabelling of ``codes`` under permuting bits (``codes`` itself when
+    there are too many permutations to try)."""
+    if width > 5:
+        return codes
+    return min(tuple(_permute(c, p) for c in codes)
+               for p in itertools.permutations(range(width)))
 
 
 @dataclass(frozen=True, slots=True)
@@ -322,24 +383,34 @@ def _pool(jobs: int, score: Scorer) -> ProcessPoolExecutor | None:
 
 
 def adjacency_search(score: Scorer, table: StateTable, width: int) -> SearchResult:
-    """The rule-based codes of :func:`adjacency_codes`, polarity chosen by the true cost.
+    """The best by true cost of the rule-based embeddings of :func:`adjacency_embeddings`,
+    each in every polarity.
 
     The rules only fix Hamming distances, and complementing any set of code bits keeps
     every distance: all 2**width such variants are equally good by the rules.  They are
     not equally cheap (complementing a bit complements a D input's logic and moves
-    inverters), so each is scored and the cheapest kept; ties keep the uncomplemented
-    codes, with reset at all zeros.
+    inverters), nor are embeddings of nearly equal spread, so each is scored and the
+    cheapest kept; ties keep the earlier (least spread, uncomplemented) one.  Ctrl-C
+    returns the best scored so far.
     """
-    codes = adjacency_codes(table, width)
     best: tuple[tuple[float, int], tuple[int, ...]] | None = None
-    for mask in range(1 << width):
-        variant = tuple(c ^ mask for c in codes)
-        value = score(variant, width)
-        if best is None or value < best[0]:
-            best = (value, variant)
+    evaluated = 0
+    interrupted = False
+    try:
+        for codes in adjacency_embeddings(table, width):
+            for mask in range(1 << width):
+                variant = tuple(c ^ mask for c in codes)
+                value = score(variant, width)
+                evaluated += 1
+                if best is None or value < best[0]:
+                    best = (value, variant)
+    except KeyboardInterrupt:
+        if best is None:
+            raise
+        interrupted = True
     assert best is not None
-    return SearchResult(codes=best[1], width=width, cost=best[0][0], evaluated=1 << width,
-                        proven=False, interrupted=False)
+    return SearchResult(codes=best[1], width=width, cost=best[0][0], evaluated=evaluated,
+                        proven=False, interrupted=interrupted)
 
 
 def anneal_search(score: Scorer, table: StateTable, width: int, seed: int,
@@ -354,10 +425,15 @@ def anneal_search(score: Scorer, table: StateTable, width: int, seed: int,
             cache[codes] = score(codes, width)
         return cache[codes]
 
+    rule = adjacency_search(score, table, width)
     binary = encode(table, "binary")
     starts = [tuple(binary.codes[s] for s in table.states)] if binary.width == width else []
-    starts.append(adjacency_codes(table, width))
-    current = min(starts, key=value)
+    try:
+        if rule.interrupted:
+            raise KeyboardInterrupt
+        current = min([rule.codes, *starts], key=value)
+    except KeyboardInterrupt:
+        return replace(rule, interrupted=True)
     best = current
     progress = _Progress("anneal", budget)
     temperature = max(1.0, value(current)[0] * 0.05)
@@ -384,5 +460,6 @@ def anneal_search(score: Scorer, table: StateTable, width: int, seed: int,
         interrupted = True
     finally:
         progress.close()
-    return SearchResult(codes=best, width=width, cost=value(best)[0], evaluated=len(cache),
-                        proven=False, interrupted=interrupted)
+    return SearchResult(codes=best, width=width, cost=value(best)[0],
+                        evaluated=len(cache) + rule.evaluated, proven=False,
+                        interrupted=interrupted)

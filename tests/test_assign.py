@@ -13,7 +13,8 @@ from reference import step
 from strategies import state_tables
 
 from fsmsynth import StateTable, synthesize
-from fsmsynth.assign import adjacency_codes, count_assignments, exhaustive_assignments
+from fsmsynth.assign import (adjacency_codes, adjacency_embeddings, adjacency_weights,
+                             count_assignments, exhaustive_assignments)
 from fsmsynth.cli import main
 from fsmsynth.errors import OptionError
 from fsmsynth.formats import read_table
@@ -76,19 +77,51 @@ def test_same_seed_same_codes_and_every_method_verifies(table: StateTable, seed:
         assert synthesize(table, "jk", method).verification
 
 
-def test_adjacency_picks_the_cheapest_polarity_of_the_rule_codes() -> None:
-    table = read_table(EXAMPLES / "parcel_locker.toml")
+def spread(table: StateTable, codes: tuple[int, ...]) -> int:
+    return sum(w * (codes[a] ^ codes[b]).bit_count()
+               for (a, b), w in adjacency_weights(table).items())
+
+
+def test_adjacency_picks_the_cheapest_polarity_of_the_rule_embeddings() -> None:
+    table = read_table(EXAMPLES / "conveyor_sorter.toml")
     rule = adjacency_codes(table, 3)
-    assert rule[table.states.index(table.reset)] == 0
+    embeddings = adjacency_embeddings(table, 3)
+    assert rule[table.states.index(table.reset)] == 0 and len(embeddings) == 2
     design = synthesize(table, "d", "adjacency", width=3, minimize=False)
     codes = tuple(design.encoding.codes[s] for s in table.states)
-    masks = {c ^ r for c, r in zip(codes, rule)}
-    assert design.encoding.width == 3 and len(masks) == 1  # one complement of the rule codes
-    assert design.assignment is not None and design.assignment.evaluated == 8
+    # One complement of one of the embeddings, the cheapest of all those scored.
+    assert any(len({c ^ e for c, e in zip(codes, emb)}) == 1 for emb in embeddings)
+    assert design.assignment is not None
+    assert design.assignment.evaluated == 8 * len(embeddings)
     assert design.cost.total == design.assignment.cost
+    for emb in embeddings:
+        for mask in (4, 5, 7):  # reset at a code of 3 bits, so the width stays 3
+            given = dict(zip(table.states, (c ^ mask for c in emb)))
+            assert design.cost.total <= synthesize(table, "d", given, minimize=False,
+                                                   check=False).cost.total
     assert design.verification
     wide = synthesize(table, "d", "anneal", width=3, budget=50)
     assert wide.encoding.width == 3 and wide.verification
+
+
+@settings(max_examples=25, deadline=None)
+@given(table=state_tables(min_states=2, max_states=9, max_inputs=2), extra=st.integers(0, 1))
+def test_rule_embeddings_are_distinct_local_optima_least_spread_first(table: StateTable,
+                                                                      extra: int) -> None:
+    width = max(1, (len(table.states) - 1).bit_length()) + extra
+    embeddings = adjacency_embeddings(table, width)
+    assert embeddings == adjacency_embeddings(table, width)  # seeded: deterministic
+    assert 1 <= len(embeddings) <= 8
+    reset = table.states.index(table.reset)
+    spreads = [spread(table, e) for e in embeddings]
+    assert spreads == sorted(spreads) and spreads[0] <= spread(table, adjacency_codes(table, width))
+    relabelled = set()
+    for e in embeddings:
+        assert e[reset] == 0 and len(set(e)) == len(e) and max(e) < 1 << width
+        forms = {tuple(sum(1 << p[b] for b in range(width) if c >> b & 1) for c in e)
+                 for p in itertools.permutations(range(width))}
+        assert not forms & relabelled  # no two are the same up to permuting bits
+        relabelled |= forms
 
 
 def test_width_too_small() -> None:

@@ -130,11 +130,14 @@ def _drop_dominated(primes: list[tuple[Cube, int]]) -> list[tuple[Cube, int]]:
     """Remove a pair whose cube and tag are both included in another pair's."""
     by_size = sorted(primes, key=lambda p: (p[0].literal_count, -p[1].bit_count()))
     kept: list[tuple[Cube, int]] = []
+    larger: list[tuple[int, int, int]] = []  # (care, value, tag) of the kept pairs
     for cube, tag in by_size:
-        if any(other.contains(cube) and t & tag == tag and (other, t) != (cube, tag)
-               for other, t in kept):
-            continue
+        care, value = cube.care, cube.value
+        if any(oc & ~care == 0 and (value ^ ov) & oc == 0 and ot & tag == tag
+               for oc, ov, ot in larger):
+            continue  # cubes are distinct, so the including pair is another one
         kept.append((cube, tag))
+        larger.append((care, value, tag))
     return sorted(kept, key=lambda p: (p[0].care, p[0].value, p[1]))
 
 
