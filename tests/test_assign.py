@@ -13,8 +13,13 @@ from reference import step
 from strategies import state_tables
 
 from fsmsynth import StateTable, synthesize
-from fsmsynth.assign import (adjacency_codes, adjacency_embeddings, adjacency_weights,
-                             count_assignments, exhaustive_assignments)
+from fsmsynth.assign import (
+    adjacency_codes,
+    adjacency_embeddings,
+    adjacency_weights,
+    count_assignments,
+    exhaustive_assignments,
+)
 from fsmsynth.cli import main
 from fsmsynth.errors import OptionError
 from fsmsynth.formats import read_table

@@ -120,7 +120,17 @@ def test_mano_dont_care_example() -> None:
     assert set(r.terms) in ({"--11", "00--"}, {"--11", "0--1"})
 
 
-def test_time_limit_returns_best_found_with_a_bound() -> None:
+def test_time_limit_returns_best_found_with_a_bound(monkeypatch: pytest.MonkeyPatch) -> None:
+    from fsmsynth.logic import sop
+
+    heuristic = []
+
+    def espresso(*args: object) -> object:
+        heuristic.append(real(*args))  # type: ignore[arg-type]
+        return heuristic[-1]
+
+    real = sop._heuristic
+    monkeypatch.setattr(sop, "_heuristic", espresso)
     rng = random.Random(12)
     points = list(range(1 << 12))
     rng.shuffle(points)
@@ -128,6 +138,9 @@ def test_time_limit_returns_best_found_with_a_bound() -> None:
     r = minimize_sop(12, on=points[:third], dc=points[third:2 * third], time_limit=0.05)
     assert not r.proven and 0 < r.lower_bound <= len(r.terms)
     assert agrees(r, 12, points[:third], points[third:2 * third])
+    # Stopped early, the result is never worse than Espresso's cover of the same function.
+    (fallback,) = heuristic
+    assert (len(r.terms), r.literals) <= sop._size(fallback)
 
 
 def test_bad_minterm() -> None:

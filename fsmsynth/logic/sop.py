@@ -7,7 +7,7 @@ significant bit (with three variables a, b, c, minterm 6 is a = 1, b = 1, c = 0)
 from __future__ import annotations
 
 from collections.abc import Sequence
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import sympy
 
@@ -100,8 +100,8 @@ def minimize_sop(n_inputs: int, on: Sequence[int] | Sequence[Sequence[int]],
         ``"exact"`` (all primes, minimum cover by integer programming), ``"petrick"``
         (Petrick's method, small functions only) or ``"heuristic"`` (Espresso).
     time_limit:
-        Seconds for the exact cover; past it the best found is returned with
-        ``proven=False``.
+        Seconds for the exact cover; past it the better of the best cover found and
+        Espresso's is returned, with ``proven=False`` and the lower bound reached.
 
     Examples
     --------
@@ -137,6 +137,11 @@ def minimize_sop(n_inputs: int, on: Sequence[int] | Sequence[Sequence[int]],
         result = petrick_cover(n_inputs, on_sets, dc_sets)
     else:
         result = exact_cover(n_inputs, on_sets, dc_sets, time_limit=time_limit)
+        if not result.proven:
+            # Stopped by the time limit: the best found is never worse than Espresso's.
+            fallback = _heuristic(n_inputs, on_sets, dc_sets)
+            if _size(fallback) < _size(result):
+                result = replace(fallback, lower_bound=result.lower_bound)
     products = result.products
     return SopCover(
         n_inputs=n_inputs,
@@ -147,6 +152,11 @@ def minimize_sop(n_inputs: int, on: Sequence[int] | Sequence[Sequence[int]],
         lower_bound=result.lower_bound,
         method=method,
     )
+
+
+def _size(cover: ExactCover) -> tuple[int, int]:
+    """(distinct product terms, their literals): the order covers are ranked in."""
+    return len(cover.products), sum(p.literal_count for p in cover.products)
 
 
 def _heuristic(n: int, on_sets: list[set[int]], dc_sets: list[set[int]]) -> ExactCover:
