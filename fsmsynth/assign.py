@@ -178,10 +178,12 @@ def adjacency_weights(table: StateTable) -> dict[tuple[int, int], int]:
     return weights
 
 
-RULE_EMBEDDINGS = 8
-"""``adjacency`` scores this many distinct rule-optimal embeddings, each in every polarity."""
+RULE_SCORES = 64
+"""``adjacency`` scores at most this many assignments: rule-optimal embeddings (eight with
+three state bits, fewer with more), each in all 2**width polarities."""
 RULE_STARTS = 20
-"""Seeded random placements descended beside the greedy one to find those embeddings."""
+"""Seeded random placements descended beside the greedy one to find those embeddings
+(fewer for machines of more than 16 states, where one descent costs more)."""
 
 
 def adjacency_codes(table: StateTable, width: int) -> tuple[int, ...]:
@@ -206,7 +208,7 @@ def adjacency_codes(table: StateTable, width: int) -> tuple[int, ...]:
     return tuple(_descend(codes, neighbours, width, reset)[1])
 
 
-def adjacency_embeddings(table: StateTable, width: int, count: int = RULE_EMBEDDINGS,
+def adjacency_embeddings(table: StateTable, width: int, count: int = 8,
                          starts: int = RULE_STARTS) -> list[tuple[int, ...]]:
     """Up to ``count`` distinct assignments of least weighted Hamming spread, least first.
 
@@ -222,7 +224,7 @@ def adjacency_embeddings(table: StateTable, width: int, count: int = RULE_EMBEDD
     rng = random.Random(0)
     found: dict[tuple[int, ...], tuple[int, tuple[int, ...]]] = {}
     placements = [list(adjacency_codes(table, width))]
-    for _ in range(starts):
+    for _ in range(starts if n <= 16 else min(starts, max(2, 320 // n))):
         others = rng.sample(range(1, 1 << width), n - 1)
         placements.append(others[:reset] + [0] + others[reset:])
     for codes in placements:
@@ -397,7 +399,7 @@ def adjacency_search(score: Scorer, table: StateTable, width: int) -> SearchResu
     evaluated = 0
     interrupted = False
     try:
-        for codes in adjacency_embeddings(table, width):
+        for codes in adjacency_embeddings(table, width, max(1, RULE_SCORES >> width)):
             for mask in range(1 << width):
                 variant = tuple(c ^ mask for c in codes)
                 value = score(variant, width)
