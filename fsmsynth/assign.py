@@ -192,9 +192,15 @@ def adjacency_codes(table: StateTable, width: int) -> tuple[int, ...]:
     States are placed greedily, most weighted first, each at the free code nearest its
     placed partners; then :func:`_descend` improves the placement.
     """
-    n = len(table.states)
-    neighbours = _neighbours(adjacency_weights(table), n)
+    neighbours = _neighbours(adjacency_weights(table), len(table.states))
     reset = table.states.index(table.reset)
+    return tuple(_descend(_greedy_placement(neighbours, width, reset), neighbours, width,
+                          reset)[1])
+
+
+def _greedy_placement(neighbours: list[list[tuple[int, int]]], width: int,
+                      reset: int) -> list[int]:
+    n = len(neighbours)
     order = [reset] + sorted((s for s in range(n) if s != reset),
                              key=lambda s: (-sum(v for _t, v in neighbours[s]), s))
     codes = [-1] * n
@@ -205,7 +211,7 @@ def adjacency_codes(table: StateTable, width: int) -> tuple[int, ...]:
                                                   for t, v in neighbours[s] if codes[t] >= 0))
         codes[s] = best
         free.discard(best)
-    return tuple(_descend(codes, neighbours, width, reset)[1])
+    return codes
 
 
 def adjacency_embeddings(table: StateTable, width: int, count: int = 8,
@@ -223,7 +229,7 @@ def adjacency_embeddings(table: StateTable, width: int, count: int = 8,
     reset = table.states.index(table.reset)
     rng = random.Random(0)
     found: dict[tuple[int, ...], tuple[int, tuple[int, ...]]] = {}
-    placements = [list(adjacency_codes(table, width))]
+    placements = [_greedy_placement(neighbours, width, reset)]
     for _ in range(starts if n <= 16 else min(starts, max(2, 320 // n))):
         others = rng.sample(range(1, 1 << width), n - 1)
         placements.append(others[:reset] + [0] + others[reset:])
@@ -268,9 +274,11 @@ def _descend(codes: list[int], neighbours: list[list[tuple[int, int]]], width: i
                 if delta < 0:
                     codes[a], codes[b] = cb, ca
                     improved = True
+            here = pull(a, codes[a], -1)
             for c in sorted(set(range(1 << width)) - set(codes)):
-                if pull(a, c, -1) < pull(a, codes[a], -1):
-                    codes[a] = c
+                there = pull(a, c, -1)
+                if there < here:
+                    codes[a], here = c, there
                     improved = True
     spread = sum(v * (codes[a] ^ codes[t]).bit_count()
                  for a in range(n) for t, v in neighbours[a] if t > a)
@@ -428,11 +436,11 @@ def anneal_search(score: Scorer, table: StateTable, width: int, seed: int,
         return cache[codes]
 
     rule = adjacency_search(score, table, width)
+    if rule.interrupted:
+        return rule
     binary = encode(table, "binary")
     starts = [tuple(binary.codes[s] for s in table.states)] if binary.width == width else []
     try:
-        if rule.interrupted:
-            raise KeyboardInterrupt
         current = min([rule.codes, *starts], key=value)
     except KeyboardInterrupt:
         return replace(rule, interrupted=True)
