@@ -121,7 +121,7 @@ def test_mano_dont_care_example() -> None:
 
 
 def test_time_limit_returns_best_found_with_a_bound(monkeypatch: pytest.MonkeyPatch) -> None:
-    from fsmsynth.logic import sop
+    from fsmsynth.logic import exact
 
     heuristic = []
 
@@ -129,8 +129,8 @@ def test_time_limit_returns_best_found_with_a_bound(monkeypatch: pytest.MonkeyPa
         heuristic.append(real(*args))  # type: ignore[arg-type]
         return heuristic[-1]
 
-    real = sop._heuristic
-    monkeypatch.setattr(sop, "_heuristic", espresso)
+    real = exact.heuristic_cover
+    monkeypatch.setattr(exact, "heuristic_cover", espresso)
     rng = random.Random(12)
     points = list(range(1 << 12))
     rng.shuffle(points)
@@ -140,7 +140,7 @@ def test_time_limit_returns_best_found_with_a_bound(monkeypatch: pytest.MonkeyPa
     assert agrees(r, 12, points[:third], points[third:2 * third])
     # Stopped early, the result is never worse than Espresso's cover of the same function.
     (fallback,) = heuristic
-    assert (len(r.terms), r.literals) <= sop._size(fallback)
+    assert (len(r.terms), r.literals) <= fallback.size
 
 
 def test_bad_minterm() -> None:

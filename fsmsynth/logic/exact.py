@@ -7,8 +7,10 @@ minimum in the number of distinct product terms, then in their literals.
 * Primes: the tabular method of Quine (1952) and McCluskey (1956), extended to several
   outputs with tags (Bartee, Lebow and Reed, *Theory and Design of Digital Machines*,
   McGraw-Hill, 1962, multiple-output prime implicants).
-* Cover: essential primes first, then the remaining (cyclic) core as a 0-1 integer program
-  solved by HiGHS through :func:`scipy.optimize.milp`, with a time limit.  Petrick's
+* Cover: essential primes first, then the remaining (cyclic) core by branch and bound
+  when small, else as 0-1 integer programs solved by HiGHS through
+  :func:`scipy.optimize.milp`, with a time limit (past it, Espresso's cover is kept when it
+  is smaller).  Petrick's
   method (Petrick 1956) is kept as the small-case reference.
 
 Points are ints with bit ``i`` = variable ``i``.
@@ -19,13 +21,14 @@ from __future__ import annotations
 import math
 import time
 from collections.abc import Iterable, Iterator, Sequence
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 from scipy.optimize import Bounds, LinearConstraint, linprog, milp
 from scipy.sparse import csr_matrix, vstack
 
 from fsmsynth.logic.cube import Cube, bits_of
+from fsmsynth.logic.espresso import espresso_cover
 
 
 @dataclass(frozen=True, slots=True)
@@ -50,6 +53,12 @@ class ExactCover:
     def products(self) -> tuple[Cube, ...]:
         """The distinct product terms."""
         return tuple(sorted({t for f in self.terms for t in f}))
+
+    @property
+    def size(self) -> tuple[int, int]:
+        """(distinct product terms, their literals): the order covers are ranked in."""
+        products = self.products
+        return len(products), sum(p.literal_count for p in products)
 
 
 def points_of(cubes: Iterable[Cube], n: int) -> set[int]:
@@ -397,8 +406,8 @@ def exact_cover(n: int, on_sets: Sequence[set[int]], dc_sets: Sequence[set[int]]
     on_sets, dc_sets:
         Per output, the points where it is 1 and where it is free.
     time_limit:
-        Seconds for the covering solver; past it the best cover found is returned with
-        ``proven=False`` and the lower bound reached.
+        Seconds for the covering solver; past it the better of the best cover found and
+        Espresso's is returned, with ``proven=False`` and the lower bound reached.
     """
     care = [on | dc for on, dc in zip(on_sets, dc_sets)]
     primes = prime_implicants(n, care)
@@ -411,8 +420,26 @@ def exact_cover(n: int, on_sets: Sequence[set[int]], dc_sets: Sequence[set[int]]
                   and any(primes[j][0].contains_point(m) for m in on)]
         terms.append(_irredundant(on, usable))
     if proven:
-        lower = len({t for f in terms for t in f})
-    return ExactCover(terms=tuple(terms), proven=proven, lower_bound=lower)
+        return ExactCover(terms=tuple(terms), proven=True,
+                          lower_bound=len({t for f in terms for t in f}))
+    found = ExactCover(terms=tuple(terms), proven=False, lower_bound=lower)
+    # Stopped by the time limit: the best found is never worse than Espresso's.
+    heuristic = heuristic_cover(n, on_sets, dc_sets)
+    return replace(heuristic, lower_bound=lower) if heuristic.size < found.size else found
+
+
+def heuristic_cover(n: int, on_sets: Sequence[set[int]],
+                    dc_sets: Sequence[set[int]]) -> ExactCover:
+    """Espresso's cover of the same points (``proven=False``, no lower bound)."""
+    full = (1 << n) - 1
+    if n == 0:
+        return ExactCover(terms=tuple((Cube.universe(),) if on else () for on in on_sets),
+                          proven=False, lower_bound=0)
+    on_cubes = [[Cube.minterm(m, n) for m in sorted(s)] for s in on_sets]
+    off_cubes = [[Cube.minterm(m, n) for m in range(full + 1) if m not in on and m not in dc]
+                 for on, dc in zip(on_sets, dc_sets)]
+    return ExactCover(terms=tuple(espresso_cover(n, on_cubes, off_cubes)), proven=False,
+                      lower_bound=0)
 
 
 def petrick(rows: Sequence[Sequence[int]], weights: Sequence[int]) -> set[int]:

@@ -7,14 +7,12 @@ significant bit (with three variables a, b, c, minterm 6 is a = 1, b = 1, c = 0)
 from __future__ import annotations
 
 from collections.abc import Sequence
-from dataclasses import dataclass, replace
+from dataclasses import dataclass
 
 import sympy
 
 from fsmsynth.errors import OptionError
-from fsmsynth.logic.cube import Cube
-from fsmsynth.logic.espresso import espresso_cover
-from fsmsynth.logic.exact import ExactCover, exact_cover, petrick_cover
+from fsmsynth.logic.exact import exact_cover, heuristic_cover, petrick_cover
 
 METHODS = ("exact", "heuristic", "petrick")
 
@@ -132,16 +130,11 @@ def minimize_sop(n_inputs: int, on: Sequence[int] | Sequence[Sequence[int]],
     on_sets = [{_to_point(m, n_inputs) for m in ms} for ms in on_lists]
     dc_sets = [{_to_point(m, n_inputs) for m in ms} - on_sets[f] for f, ms in enumerate(dc_lists)]
     if method == "heuristic":
-        result = _heuristic(n_inputs, on_sets, dc_sets)
+        result = heuristic_cover(n_inputs, on_sets, dc_sets)
     elif method == "petrick":
         result = petrick_cover(n_inputs, on_sets, dc_sets)
     else:
         result = exact_cover(n_inputs, on_sets, dc_sets, time_limit=time_limit)
-        if not result.proven:
-            # Stopped by the time limit: the best found is never worse than Espresso's.
-            fallback = _heuristic(n_inputs, on_sets, dc_sets)
-            if _size(fallback) < _size(result):
-                result = replace(fallback, lower_bound=result.lower_bound)
     products = result.products
     return SopCover(
         n_inputs=n_inputs,
@@ -152,20 +145,3 @@ def minimize_sop(n_inputs: int, on: Sequence[int] | Sequence[Sequence[int]],
         lower_bound=result.lower_bound,
         method=method,
     )
-
-
-def _size(cover: ExactCover) -> tuple[int, int]:
-    """(distinct product terms, their literals): the order covers are ranked in."""
-    return len(cover.products), sum(p.literal_count for p in cover.products)
-
-
-def _heuristic(n: int, on_sets: list[set[int]], dc_sets: list[set[int]]) -> ExactCover:
-    full = (1 << n) - 1
-    on_cubes = [[Cube.minterm(m, n) for m in sorted(s)] for s in on_sets]
-    off_cubes = [[Cube.minterm(m, n) for m in range(full + 1) if m not in on and m not in dc]
-                 for on, dc in zip(on_sets, dc_sets)]
-    if n == 0:
-        return ExactCover(terms=tuple((Cube.universe(),) if on else () for on in on_sets),
-                          proven=False, lower_bound=0)
-    terms = espresso_cover(n, on_cubes, off_cubes)
-    return ExactCover(terms=tuple(terms), proven=False, lower_bound=0)
