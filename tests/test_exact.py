@@ -155,37 +155,84 @@ def test_constant_functions() -> None:
         assert minimize_sop(n, on=on).proven
 
 
-@pytest.mark.parametrize("seed", [0, 1, 2, 4])  # seeds whose cores exceed SMALL_CORE
-def test_large_core_matches_one_weighted_program(seed: int) -> None:
-    # 9 inputs, a third on and a third don't care: cyclic cores of 100+ columns go to the
-    # integer programs.  Reference: HiGHS (through scipy.optimize.milp) on one program
-    # whose weights fold terms and literals together, solved with a zero gap.
+def _weighted_program_optimum(core: list[list[int]], weights: list[int]) -> int:
+    """Reference: HiGHS (through scipy.optimize.milp) on one program whose weights fold
+    terms and literals together, solved with a zero gap."""
     import numpy as np
     from scipy.optimize import Bounds, LinearConstraint, milp
     from scipy.sparse import csr_matrix
 
-    from fsmsynth.logic import exact as ex
-    n = 9
-    rng = random.Random(seed)
-    points = list(range(1 << n))
-    rng.shuffle(points)
-    on, dc = set(points[:170]), set(points[170:340])
-    primes = ex.prime_implicants(n, [on | dc])
-    literals = [c.literal_count for c, _t in primes]
-    big = sum(literals) + 1
-    core, _taken = ex._reduce(ex._cover_rows([on], primes, n), [big + x for x in literals])
     columns = sorted({j for r in core for j in r})
-    assert len(columns) > ex.SMALL_CORE  # the case the programs exist for
     index = {j: i for i, j in enumerate(columns)}
     cells = [(i, index[j]) for i, r in enumerate(core) for j in r]
     matrix = csr_matrix(([1.0] * len(cells), ([c[0] for c in cells], [c[1] for c in cells])),
                         shape=(len(core), len(columns)))
-    reference = milp(np.array([big + literals[j] for j in columns], dtype=float),
+    reference = milp(np.array([weights[j] for j in columns], dtype=float),
                      constraints=LinearConstraint(matrix, lb=1.0, ub=np.inf),
                      integrality=np.ones(len(columns)), bounds=Bounds(0, 1),
                      options={"disp": False, "mip_rel_gap": 0.0})
-    picked, proven, lower = ex._lexicographic_ilp(core, literals, [big + x for x in literals],
-                                                  time_limit=60.0)
+    return round(reference.fun)
+
+
+def _random_core(n: int, seed: int) -> tuple[list[list[int]], list[int], list[int]]:
+    """The cyclic core of a random function (a third on, a third don't care)."""
+    from fsmsynth.logic import covering
+    from fsmsynth.logic import exact as ex
+    rng = random.Random(seed)
+    points = list(range(1 << n))
+    rng.shuffle(points)
+    third = len(points) // 3
+    on, dc = set(points[:third]), set(points[third:2 * third])
+    primes = ex.prime_implicants(n, [on | dc])
+    literals = [c.literal_count for c, _t in primes]
+    big = sum(literals) + 1
+    weights = [big + x for x in literals]
+    rows = ex._cover_rows([on], primes, n)
+    core = covering.reduce_table(dict(enumerate(covering._mask(r) for r in rows)), weights, [])
+    assert core is not None
+    return [list(covering._columns(m)) for m in core.values()], literals, weights
+
+
+@pytest.mark.parametrize(("n", "seed"), [(8, 2), (8, 5), (9, 0), (9, 1), (9, 4)])
+def test_core_search_matches_one_weighted_program(n: int, seed: int) -> None:
+    # Cores whose linear relaxation is fractional: the priced branch and bound must reach
+    # the weighted program's optimum, and prove it.
+    import time
+
+    from fsmsynth.logic import covering
+    core, literals, weights = _random_core(n, seed)
+    minimum, found = covering.search_core(dict(enumerate(covering._mask(r) for r in core)),
+                                          weights, deadline=time.monotonic() + 60)
+    if minimum is None:  # past the node limits: the integer programs answer
+        minimum, proven, _lower = covering._lexicographic_ilp(core, literals, weights, 60.0)
+        assert proven
+    assert found and all(set(r) & found for r in core)
+    assert all(set(r) & minimum for r in core)
+    assert sum(weights[j] for j in minimum) == _weighted_program_optimum(core, weights)
+
+
+@pytest.mark.parametrize("seed", [0, 1, 2, 4])
+def test_integer_programs_match_one_weighted_program(seed: int) -> None:
+    # 9 inputs: cyclic cores of 80+ columns, solved by the lexicographic programs.
+    from fsmsynth.logic import covering
+    core, literals, weights = _random_core(9, seed)
+    assert len({j for r in core for j in r}) > 80
+    picked, proven, lower = covering._lexicographic_ilp(core, literals, weights, time_limit=60.0)
     assert proven and lower == len(picked)
-    assert big * len(picked) + sum(literals[j] for j in picked) == round(reference.fun)
+    assert sum(weights[j] for j in picked) == _weighted_program_optimum(core, weights)
     assert all(set(r) & picked for r in core)
+
+
+@settings(max_examples=60, deadline=None)
+@given(st.lists(st.sets(st.integers(0, 11), min_size=1, max_size=4), min_size=1, max_size=14),
+       st.lists(st.integers(1, 5), min_size=12, max_size=12))
+def test_minimum_cover_equals_petrick(rows: list[set[int]], literals: list[int]) -> None:
+    # Petrick's method (Petrick 1956) multiplies out every cover: the reference minimum.
+    from fsmsynth.logic import covering
+    big = sum(literals) + 1
+    weights = [big + x for x in literals]
+    chosen, proven, lower = covering.minimum_cover([sorted(r) for r in rows], literals, 10.0)
+    reference = covering.petrick([sorted(r) for r in rows], weights)
+    assert proven and lower == len(chosen)
+    assert all(r & chosen for r in rows)
+    assert sum(weights[j] for j in chosen) == sum(weights[j] for j in reference)
