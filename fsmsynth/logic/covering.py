@@ -72,18 +72,27 @@ def minimum_cover(rows: Sequence[Sequence[int]], literals: Sequence[int],
     chosen = set(taken)
     if not core:
         return chosen, True, len(chosen)
-    deadline = time.monotonic() + max(time_limit, 0.01)
+    start = time.monotonic()
+    deadline = start + max(time_limit, 0.01)
+    small = len(_columns(_union(core.values()))) <= BRANCH_CORE
     found: set[int] = set()
-    if len(_columns(_union(core.values()))) <= BRANCH_CORE:
+    if small:
         picked, found = search_core(core, weights, deadline)
         if picked is not None:
             return chosen | picked, True, len(chosen | picked)
+    # A large core keeps a quarter of the time: should the programs not finish, the
+    # priced search then looks for a better cover than the greedy one they fall back to.
+    programs_until = deadline if small else start + 0.75 * (deadline - start)
     core_rows = [list(_columns(m)) for m in core.values()]
     picked, proven, lower = _lexicographic_ilp(core_rows, literals, weights,
-                                               max(deadline - time.monotonic(), 0.0))
-    if not proven and found and _weight(found, weights) < _weight(picked, weights):
+                                               max(programs_until - time.monotonic(), 0.0))
+    if proven:
+        return chosen | picked, True, len(chosen) + lower
+    if not small and time.monotonic() < deadline:
+        _minimum, found = search_core(core, weights, deadline, quick_nodes=0)
+    if found and _weight(found, weights) < _weight(picked, weights):
         picked = found
-    return chosen | picked, proven, len(chosen) + lower
+    return chosen | picked, False, len(chosen) + lower
 
 
 def reduce_table(rows: dict[int, int], weights: Sequence[int],
@@ -141,9 +150,12 @@ def reduce_table(rows: dict[int, int], weights: Sequence[int],
         rows = {i: r & ~dominated for i, r in kept.items()}
 
 
-def search_core(core: dict[int, int], weights: Sequence[int],
-                deadline: float) -> tuple[set[int] | None, set[int]]:
+def search_core(core: dict[int, int], weights: Sequence[int], deadline: float,
+                quick_nodes: int = QUICK_NODES) -> tuple[set[int] | None, set[int]]:
     """Minimum-weight cover of a cyclic core by branch and bound (see the module text).
+
+    ``quick_nodes`` bounds the search with zero prices that comes before the linear
+    relaxation (0 skips it).
 
     Returns ``(minimum, best found)``: ``minimum`` is ``None`` when the node limits or the
     deadline stopped the search, and ``best found`` is the cheapest cover seen (empty if
@@ -155,7 +167,7 @@ def search_core(core: dict[int, int], weights: Sequence[int],
     rows = {i: _mask(local[j] for j in _columns(r)) for i, r in core.items()}
     search = _Search(weight, deadline)
     search.best_cost, search.best = _greedy_masks(rows, weight)
-    quick = search.run(rows, [0.0] * (max(rows) + 1), QUICK_NODES)
+    quick = quick_nodes > 0 and search.run(rows, [0.0] * (max(rows) + 1), quick_nodes)
 
     def found() -> set[int]:
         return {columns[c] for c in search.best}
@@ -194,8 +206,7 @@ class _Search:
 
     def _visit(self, rows: dict[int, int] | None, cost: int, chosen: list[int]) -> bool:
         self.nodes += 1
-        if self.nodes > self.node_limit or (self.nodes & 31 == 0
-                                            and time.monotonic() > self.deadline):
+        if self.nodes > self.node_limit or time.monotonic() > self.deadline:
             return False
         weight = self.weight
         while True:
