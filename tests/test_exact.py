@@ -236,3 +236,43 @@ def test_minimum_cover_equals_petrick(rows: list[set[int]], literals: list[int])
     assert proven and lower == len(chosen)
     assert all(r & chosen for r in rows)
     assert sum(weights[j] for j in chosen) == sum(weights[j] for j in reference)
+
+
+@settings(max_examples=60, deadline=None)
+@given(st.lists(st.sets(st.integers(0, 9), min_size=1, max_size=4), min_size=1, max_size=12),
+       st.lists(st.integers(1, 5), min_size=10, max_size=10))
+def test_priced_search_equals_petrick(rows: list[set[int]], literals: list[int]) -> None:
+    # The search priced by the linear relaxation from the first node (no quick phase).
+    import time
+
+    from fsmsynth.logic import covering
+    big = sum(literals) + 1
+    weights = [big + x for x in literals]
+    core = dict(enumerate(covering._mask(r) for r in rows))
+    minimum, found = covering.search_core(core, weights, time.monotonic() + 60, quick_nodes=0)
+    assert minimum is not None and minimum == found
+    reference = covering.petrick([sorted(r) for r in rows], weights)
+    assert all(r & minimum for r in rows)
+    assert sum(weights[j] for j in minimum) == sum(weights[j] for j in reference)
+
+
+@settings(max_examples=80, deadline=None)
+@given(st.lists(st.sets(st.integers(0, 7), min_size=1, max_size=3), min_size=1, max_size=9),
+       st.lists(st.integers(1, 9), min_size=8, max_size=8),
+       st.lists(st.floats(0, 12), min_size=9, max_size=9))
+def test_lagrangian_bound_and_reduced_costs_are_valid(rows: list[set[int]], weights: list[int],
+                                                      prices: list[float]) -> None:
+    # For any nonnegative row prices, every cover costs at least the bound, and every cover
+    # using column j at least the bound plus j's positive reduced cost (Beasley 1990,
+    # Lagrangian relaxation of set covering; from memory).  Checked against all covers.
+    from fsmsynth.logic import covering
+    table = dict(enumerate(covering._mask(r) for r in rows))
+    bound, reduced = covering._lagrangian_bound(table, weights, prices)
+    columns = sorted(set().union(*rows))
+    for size in range(1, len(columns) + 1):
+        for subset in itertools.combinations(columns, size):
+            if all(r & set(subset) for r in rows):
+                cost = sum(weights[j] for j in subset)
+                assert cost >= bound - 1e-9
+                for j in subset:
+                    assert cost >= bound + max(reduced.get(j, weights[j]), 0) - 1e-9
