@@ -228,32 +228,22 @@ def test_integer_programs_match_one_weighted_program(seed: int) -> None:
        st.lists(st.integers(1, 5), min_size=12, max_size=12))
 def test_minimum_cover_equals_petrick(rows: list[set[int]], literals: list[int]) -> None:
     # Petrick's method (Petrick 1956) multiplies out every cover: the reference minimum.
-    from fsmsynth.logic import covering
-    big = sum(literals) + 1
-    weights = [big + x for x in literals]
-    chosen, proven, lower = covering.minimum_cover([sorted(r) for r in rows], literals, 10.0)
-    reference = covering.petrick([sorted(r) for r in rows], weights)
-    assert proven and lower == len(chosen)
-    assert all(r & chosen for r in rows)
-    assert sum(weights[j] for j in chosen) == sum(weights[j] for j in reference)
-
-
-@settings(max_examples=60, deadline=None)
-@given(st.lists(st.sets(st.integers(0, 9), min_size=1, max_size=4), min_size=1, max_size=12),
-       st.lists(st.integers(1, 5), min_size=10, max_size=10))
-def test_priced_search_equals_petrick(rows: list[set[int]], literals: list[int]) -> None:
-    # The search priced by the linear relaxation from the first node (no quick phase).
+    # Checked for the whole solver and for the search priced by the linear relaxation
+    # from its first node (no quick phase).
     import time
 
     from fsmsynth.logic import covering
     big = sum(literals) + 1
     weights = [big + x for x in literals]
-    core = dict(enumerate(covering._mask(r) for r in rows))
-    minimum, found = covering.search_core(core, weights, time.monotonic() + 60, quick_nodes=0)
+    reference = sum(weights[j] for j in covering.petrick([sorted(r) for r in rows], weights))
+    chosen, proven, lower = covering.minimum_cover([sorted(r) for r in rows], literals, 10.0)
+    assert proven and lower == len(chosen)
+    minimum, found = covering.search_core(dict(enumerate(covering._mask(r) for r in rows)),
+                                          weights, time.monotonic() + 60, quick_nodes=0)
     assert minimum is not None and minimum == found
-    reference = covering.petrick([sorted(r) for r in rows], weights)
-    assert all(r & minimum for r in rows)
-    assert sum(weights[j] for j in minimum) == sum(weights[j] for j in reference)
+    for cover in (chosen, minimum):
+        assert all(r & cover for r in rows)
+        assert sum(weights[j] for j in cover) == reference
 
 
 @settings(max_examples=80, deadline=None)
