@@ -21,8 +21,8 @@ repeated (McCluskey 1956).  What is left, the cyclic core, is solved by branch a
 
 A core of more than :data:`BRANCH_CORE` columns, or one that needs more than a fixed
 number of nodes, goes to 0-1 integer programs (HiGHS, through :func:`scipy.optimize.milp`),
-under the time limit.  The node limits, not the
-clock, decide which engine answers, so the same table always gets the same cover.
+under the time limit.  The node limits, not the clock, decide which engine answers, so the
+same table always gets the same cover.
 Petrick's method (Petrick 1956) is the small-case reference.
 
 Sets of columns are bit masks (bit ``j`` = column ``j``); rows are keyed by an id so that
@@ -39,6 +39,8 @@ from functools import lru_cache
 import numpy as np
 from scipy.optimize import Bounds, LinearConstraint, linprog, milp
 from scipy.sparse import csr_matrix, vstack
+
+from fsmsynth.logic.cube import bits_of
 
 QUICK_NODES = 40
 """Nodes searched with zero prices before the linear relaxation is solved."""
@@ -204,16 +206,17 @@ class _Search:
         self.nodes, self.node_limit, self.prices = 0, node_limit, prices
         return self._visit(rows, 0, [])
 
-    def _visit(self, rows: dict[int, int] | None, cost: int, chosen: list[int]) -> bool:
+    def _visit(self, rows: dict[int, int], cost: int, chosen: list[int]) -> bool:
         self.nodes += 1
         if self.nodes > self.node_limit or time.monotonic() > self.deadline:
             return False
         weight = self.weight
         while True:
             taken: list[int] = []
-            rows = reduce_table(rows, weight, taken)  # type: ignore[arg-type]
-            if rows is None:
+            core = reduce_table(rows, weight, taken)
+            if core is None:
                 return True
+            rows = core
             cost += sum(weight[c] for c in taken)
             chosen = chosen + taken
             if not rows:
@@ -407,9 +410,4 @@ def _low(mask: int) -> int:
 @lru_cache(maxsize=1 << 14)
 def _columns(mask: int) -> tuple[int, ...]:
     """The set bits of ``mask``, lowest first (cached: the same rows recur across nodes)."""
-    out = []
-    while mask:
-        low = mask & -mask
-        out.append(low.bit_length() - 1)
-        mask ^= low
-    return tuple(out)
+    return tuple(bits_of(mask))
