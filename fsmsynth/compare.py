@@ -87,7 +87,6 @@ def compare(table: StateTable, storages: Sequence[str] = DEFAULT_STORAGES,
         futures = [executor.submit(_one, spec, s, e, weights, logic, minimize, unused)
                    for s, e in jobs]
         rows = [f.result() for f in futures]
-    order = {(s, e): i for i, (s, e) in enumerate(jobs)}
-    ranked = sorted(rows, key=lambda r: (r.total, r.cost["gate_inputs"],
-                                         order[(r.storage, r.encoding)]))
+    ranked = sorted(rows, key=lambda r: (r.total, r.cost["gate_inputs"], r.storage,
+                                         r.encoding))
     return Comparison(machine=table.name, rows=tuple(ranked))

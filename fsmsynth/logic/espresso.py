@@ -22,6 +22,48 @@ _OUT_OFF, _OUT_ON, _OUT_FREE = 0, 1, 2
 _CONFIG = dict(single_expand=False, remove_essential=True, force_irredundant=True,
                unwrap_onset=True, recompute_onset=False, use_super_gasp=False)
 
+# pyeda's Espresso keeps one piece of state between calls: its reduce step alternates
+# between two cube orderings through a static flag (``toggle`` in reduce.c) that is never
+# reset, so a result depends on how many reduce steps ran earlier in the process.  Before
+# every call we put the flag back to its first-call value.  It cannot be read directly, so
+# we run a probe: a 4-input, 2-output function whose Espresso result differs between the
+# two orderings and whose run calls reduce an odd number of times (found by search in fresh
+# processes).  Its result tells the flag's value before the probe; the probe leaves it
+# inverted, and where that is the second ordering, a 1-variable function (one reduce step,
+# every cube essential) flips it once more.  Cost: about 70 us per call.
+_PROBE_ROWS = tuple(
+    (tuple(_ONE if p >> i & 1 else _ZERO for i in range(4)), out)
+    for p, out in enumerate(((1, 2), (0, 0), (0, 1), (1, 2), (0, 2), (1, 2), (1, 1), (1, 2),
+                             (2, 2), (0, 1), (1, 1), (2, 0), (2, 1), (1, 0), (0, 0), (1, 1))))
+_FLIP_ROWS = (((_ONE,), (_OUT_ON,)), ((_ZERO,), (_OUT_OFF,)))
+
+
+def _result(rows: str) -> frozenset[tuple[tuple[int, ...], tuple[int, ...]]]:
+    """A probe result written as ``'1113:10 ...'`` (input part, colon, output part)."""
+    return frozenset((tuple(map(int, ins)), tuple(map(int, outs)))
+                     for ins, outs in (term.split(":") for term in rows.split()))
+
+
+# What the probe returns when the flag has its first-call value, and when it has the other.
+_PROBE_FIRST = _result("1113:10 1133:01 1312:10 1313:01 2223:01 2233:10 2323:10 3112:01 3221:11")
+_PROBE_OTHER = _result("1113:10 1133:01 1312:11 1331:01 2223:01 2233:10 2323:10 3112:01 3221:10")
+
+
+def _run(n_vars: int, n_out: int, rows: object) -> frozenset[
+        tuple[tuple[int, ...], tuple[int, ...]]]:
+    set_config(**_CONFIG)  # Espresso may switch unwrap_onset off during a run
+    return frozenset(espresso(n_vars, n_out, rows, intype=FTYPE | RTYPE))
+
+
+def _restore_first_call_state() -> None:
+    """Make the next Espresso run behave as the first one in a fresh process would."""
+    seen = _run(4, 2, _PROBE_ROWS)
+    if seen == _PROBE_FIRST:
+        _run(1, 1, _FLIP_ROWS)
+    elif seen != _PROBE_OTHER:
+        raise RuntimeError("pyeda's Espresso gave an unexpected probe result: fsmsynth cannot "
+                           "make its results independent of earlier calls with this build")
+
 
 # Conversions are remembered: the encoding searches convert the same few cubes millions of
 # times.  Each map is emptied when it passes _REMEMBERED entries.
@@ -89,9 +131,9 @@ def espresso_cover(n_vars: int, on_sets: Sequence[Sequence[Cube]],
                 vec = rows.setdefault(_to_positional(cube, n_vars), [_OUT_FREE] * m)
                 assert vec[f] in (_OUT_FREE, mark), "on-set and off-set intersect"
                 vec[f] = mark
-    cover = {(key, tuple(out)) for key, out in rows.items()}
-    set_config(**_CONFIG)
-    result = espresso(n_vars, m, cover, intype=FTYPE | RTYPE)
+    cover = sorted((key, tuple(out)) for key, out in rows.items())
+    _restore_first_call_state()
+    result = _run(n_vars, m, cover)
     terms: list[list[Cube]] = [[] for _ in range(m)]
     for invec, outvec in sorted(result):
         cube = _from_positional(invec)
