@@ -67,6 +67,25 @@ class EncodingError(FsmSynthError, ValueError):
     """A state encoding that cannot be used for the table (missing state, duplicate code, ...)."""
 
 
+class NetlistError(FsmSynthError, ValueError):
+    """A netlist that is not a well-formed synchronous circuit (two drivers on a net, a net
+    nothing drives, a combinational loop, flip-flops on different clock edges, ...).
+
+    Attributes
+    ----------
+    net:
+        The net at fault, when there is one.
+    cell:
+        The gate or flip-flop at fault, when there is one.
+    """
+
+    def __init__(self, message: str, *, net: str | None = None, cell: str | None = None) -> None:
+        super().__init__(message)
+        self.message = message
+        self.net = net
+        self.cell = cell
+
+
 class VerificationError(FsmSynthError, RuntimeError):
     """A synthesized netlist that does not match its state table.
 

@@ -11,6 +11,7 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 
 from fsmsynth.cost import normal_terms
+from fsmsynth.errors import NetlistError
 from fsmsynth.logic.cover import Cover
 from fsmsynth.logic.cube import Cube
 from fsmsynth.names import RESERVED_PREFIX
@@ -18,6 +19,8 @@ from fsmsynth.storage import Storage
 
 EDGES = ("rising", "falling")
 GATE_FUNCTIONS = ("not", "buf", "and", "or", "nand", "nor", "xor", "xnor", "const0", "const1")
+_ARITY = {"not": 1, "buf": 1, "const0": 0, "const1": 0}
+"""Gates of fixed input count; the others take one or more (as Verilog's gate primitives)."""
 
 
 @dataclass(frozen=True, slots=True)
@@ -30,7 +33,16 @@ class Gate:
     output: str
 
     def __post_init__(self) -> None:
-        assert self.kind in GATE_FUNCTIONS, self.kind
+        if self.kind not in GATE_FUNCTIONS:
+            raise NetlistError(f"gate {self.name!r}: unknown kind {self.kind!r}; use one of "
+                               f"{', '.join(GATE_FUNCTIONS)}", cell=self.name)
+        arity = _ARITY.get(self.kind)
+        if arity is not None and len(self.inputs) != arity:
+            raise NetlistError(f"gate {self.name!r} ({self.kind}) has {len(self.inputs)} "
+                               f"inputs; it takes exactly {arity}", cell=self.name)
+        if arity is None and not self.inputs:
+            raise NetlistError(f"gate {self.name!r} ({self.kind}) has no inputs; it takes one "
+                               "or more", cell=self.name)
 
 
 @dataclass(frozen=True, slots=True)
@@ -52,7 +64,17 @@ class FlipFlop:
     edge: str = "rising"
 
     def __post_init__(self) -> None:
-        assert self.edge in EDGES, self.edge
+        if self.edge not in EDGES:
+            raise NetlistError(f"flip-flop {self.name!r}: clock edge {self.edge!r}; use "
+                               f"{' or '.join(EDGES)}", cell=self.name)
+        if self.reset_value not in (0, 1):
+            raise NetlistError(f"flip-flop {self.name!r}: reset value {self.reset_value!r}; "
+                               "use 0 or 1", cell=self.name)
+        if sorted(p for p, _n in self.pins) != sorted(self.storage.pins):
+            raise NetlistError(
+                f"flip-flop {self.name!r} ({self.storage.title}) connects pins "
+                f"{', '.join(p for p, _n in self.pins) or 'none'}; it needs exactly "
+                f"{', '.join(self.storage.pins)}", cell=self.name)
 
     @property
     def reset_kind(self) -> str:
@@ -116,6 +138,87 @@ class Netlist:
             if not g.kind.startswith("const"):
                 counts[g.kind] = counts.get(g.kind, 0) + 1
         return counts
+
+
+def checked_netlist(netlist: Netlist) -> Netlist:
+    """The same circuit with its gates in evaluation order and its flip-flops by bit.
+
+    A netlist built by hand or edited after synthesis may list gates and cells in any
+    order; this puts them in the order the evaluators rely on, after checking that the
+    circuit is a well-formed synchronous one.  Cost: O(gates + nets).
+
+    Raises
+    ------
+    NetlistError
+        Naming the net or cell at fault: a net with two drivers (inputs, flip-flop outputs,
+        gate outputs, and output port names, which the Verilog writer declares as nets), a
+        net read but driven by nothing, a combinational loop, state bits that are not
+        0 .. k-1 once each, or flip-flops sampling on different clock edges.
+    """
+    driver: dict[str, str] = {}
+
+    def drive(net: str, by: str) -> None:
+        if net in driver:
+            raise NetlistError(f"net {net!r} has two drivers: {driver[net]} and {by}", net=net)
+        driver[net] = by
+
+    for name in (netlist.clock, netlist.reset):
+        drive(name, "the port " + repr(name))
+    for name in netlist.inputs:
+        drive(name, f"the input {name!r}")
+    for port, net in netlist.outputs:
+        if net != port:
+            # The writers declare the port as a net of its own, wired to ``net``.
+            drive(port, f"the output port {port!r} (wired to {net!r})")
+    for ff in netlist.flip_flops:
+        drive(ff.q, f"flip-flop {ff.name!r}")
+    for g in netlist.gates:
+        drive(g.output, f"gate {g.name!r}")
+    bits = sorted(ff.bit for ff in netlist.flip_flops)
+    if bits != list(range(len(bits))):
+        raise NetlistError(f"flip-flops hold state bits {bits}: give bits 0 .. "
+                           f"{len(bits) - 1}, one flip-flop each")
+    edges = {ff.edge: ff.name for ff in netlist.flip_flops}
+    if len(edges) > 1:
+        raise NetlistError(
+            f"flip-flops {edges['rising']!r} (rising edge) and {edges['falling']!r} (falling "
+            "edge) sample on different clock edges: fsmsynth models one edge per machine; "
+            "put every flip-flop on the same edge", cell=edges["falling"])
+    readers = [(f"flip-flop {ff.name!r}", net) for ff in netlist.flip_flops
+               for _pin, net in ff.pins]
+    readers += [(f"output port {port!r}", net) for port, net in netlist.outputs]
+    readers += [(f"gate {g.name!r}", net) for g in netlist.gates for net in g.inputs]
+    for who, net in readers:
+        if net not in driver:
+            raise NetlistError(f"net {net!r}, read by {who}, is driven by nothing", net=net)
+    by_output = {g.output: g for g in netlist.gates}
+    order: list[Gate] = []
+    state: dict[str, int] = {}  # 1 while on the current path, 2 once placed
+    for root in netlist.gates:
+        if state.get(root.output):
+            continue
+        stack = [(root, 0)]
+        state[root.output] = 1
+        while stack:
+            gate, i = stack.pop()
+            if i < len(gate.inputs):
+                stack.append((gate, i + 1))
+                source = by_output.get(gate.inputs[i])
+                if source is None or state.get(source.output) == 2:
+                    continue
+                if state.get(source.output) == 1:
+                    raise NetlistError(f"combinational loop through net {source.output!r} "
+                                       f"(gate {source.name!r})", net=source.output,
+                                       cell=source.name)
+                state[source.output] = 1
+                stack.append((source, 0))
+            else:
+                state[gate.output] = 2
+                order.append(gate)
+    return Netlist(name=netlist.name, inputs=netlist.inputs, outputs=netlist.outputs,
+                   gates=tuple(order),
+                   flip_flops=tuple(sorted(netlist.flip_flops, key=lambda ff: ff.bit)),
+                   clock=netlist.clock, reset=netlist.reset)
 
 
 def state_net(bit: int) -> str:

@@ -48,6 +48,10 @@ class Storage:
         names and ``q``.
     exclusive:
         Pairs of pins that must never be 1 together.
+    forbidden_next:
+        What the cell model (``verilog_next``) does on a combination the characteristic
+        table forbids, so that simulation agrees with the written cell; verification
+        reports the combination as a failure in any case.
     """
 
     name: str
@@ -58,6 +62,7 @@ class Storage:
     equation: str
     verilog_next: str
     exclusive: tuple[tuple[str, str], ...] = ()
+    forbidden_next: int = 0
 
     def pin_values(self, q: int, q_next: int) -> str:
         """The excitation entry for ``q -> q_next``: one ``0``/``1``/``-`` per pin."""
@@ -70,12 +75,12 @@ class Storage:
         """Bit-parallel characteristic function.
 
         Every argument is a bit vector (one bit per evaluation point, ``ones`` has all of
-        them set); returns the next-state vector.  Forbidden combinations give 0 here; use
-        :meth:`forbidden` to find them.
+        them set); returns the next-state vector.  Forbidden combinations give what the
+        cell model gives (:attr:`forbidden_next`); use :meth:`forbidden` to find them.
         """
         result = 0
         for values, present, nxt in self.characteristic:
-            if not nxt:
+            if not (self.forbidden_next if nxt is None else nxt):
                 continue
             term = q if present else ones & ~q
             for pin, v in zip(self.pins, values):
@@ -136,6 +141,7 @@ SR = Storage(
     equation="Q+ = S + R' Q  (S R = 0)",
     verilog_next="s | (~r & q)",
     exclusive=(("S", "R"),),
+    forbidden_next=1,  # the cell model above is set-dominant
 )
 
 DE = Storage(

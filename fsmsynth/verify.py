@@ -27,8 +27,9 @@ from typing import Any
 
 from pyeda.boolalg.bdd import BDDONE, BDDZERO, bddvar
 
+from fsmsynth.errors import NetlistError, OptionError
 from fsmsynth.logic.cube import Cube, partition
-from fsmsynth.netlist import Netlist
+from fsmsynth.netlist import Netlist, checked_netlist
 from fsmsynth.table import StateTable
 
 
@@ -217,6 +218,13 @@ def verify(netlist: Any, table: Any = None, *, safe_unused: Sequence[int] | None
     Verification
         ``equivalent`` with the number of product states explored, or the counterexample
         with the fewest clock cycles.
+
+    Raises
+    ------
+    NetlistError
+        A netlist that is not a well-formed single-clock-edge circuit (see
+        :func:`fsmsynth.netlist.checked_netlist`), or whose ports are not the table's.
+        Any other netlist is modelled exactly, whatever the order of its gates and cells.
     """
     if table is None and hasattr(netlist, "netlist") and hasattr(netlist, "table"):
         design = netlist
@@ -230,8 +238,10 @@ def verify(netlist: Any, table: Any = None, *, safe_unused: Sequence[int] | None
     safe_unused = safe_unused or ()
     ports = tuple(p for p, _ in netlist.outputs)
     if tuple(netlist.inputs) != table.inputs or ports != table.outputs:
-        raise ValueError("the netlist's inputs and outputs are not the table's: "
-                         f"{netlist.inputs} / {ports} against {table.inputs} / {table.outputs}")
+        raise NetlistError("the netlist's inputs and outputs are not the table's: "
+                           f"{netlist.inputs} / {ports} against {table.inputs} / "
+                           f"{table.outputs}")
+    netlist = checked_netlist(netlist)
     classes = _input_classes(table, netlist)
     ones = (1 << len(classes)) - 1
     input_vectors = {
@@ -390,13 +400,20 @@ def simulate(netlist: Netlist, inputs: Sequence[str], start_code: int | None = N
     -------
     list of (code, outputs)
         For each cycle, the present state code and the outputs (one ``0``/``1`` per output)
-        seen before that cycle's clock edge.
+        seen before that cycle's clock edge.  Flip-flops behave as their Verilog cells do,
+        also on pin combinations the storage kind forbids (an SR cell with S = R = 1 sets).
+
+    Raises
+    ------
+    NetlistError
+        As for :func:`verify`.
     """
+    netlist = checked_netlist(netlist)
     code = netlist.reset_code if start_code is None else start_code
     trace = []
     for word in inputs:
         if len(word) != len(netlist.inputs) or set(word) - {"0", "1"}:
-            raise ValueError(f"input word {word!r}: give one 0 or 1 per input")
+            raise OptionError(f"input word {word!r}: give one 0 or 1 per input")
         values = {name: int(ch) for name, ch in zip(netlist.inputs, word)}
         env, next_bits, _clash = _step(netlist, code, values, 1)
         trace.append((code, "".join(str(env[net]) for _p, net in netlist.outputs)))
