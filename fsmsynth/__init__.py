@@ -8,6 +8,7 @@ from fsmsynth.equations import Equation
 from fsmsynth.errors import (
     EncodingError,
     FsmSynthError,
+    NetlistError,
     OptionError,
     SpecFileError,
     TableError,
@@ -19,6 +20,7 @@ from fsmsynth.pipeline import Design, synthesize
 from fsmsynth.reduce import StateMinimization, minimize_states
 from fsmsynth.storage import STORAGES, Storage
 from fsmsynth.table import StateTable
+from fsmsynth.timing import Delays, GateDelay, TimingReport, timing
 from fsmsynth.verify import Counterexample, Verification, simulate, verify
 from fsmsynth.version import __version__
 
@@ -30,8 +32,9 @@ __all__ = [
     "minimize_states", "StateMinimization", "encode", "minimize_sop", "SopCover",
     "synthesize", "Design", "verify", "simulate", "Verification", "Counterexample",
     "compare", "Comparison", "ComparisonRow", "convert_storage", "StorageConversion",
+    "timing", "TimingReport", "Delays", "GateDelay",
     # errors
     "FsmSynthError", "TableError", "SpecFileError", "OptionError", "EncodingError",
-    "VerificationError",
+    "NetlistError", "VerificationError",
     "__version__",
 ]

@@ -116,6 +116,9 @@ def _parser() -> argparse.ArgumentParser:
     build.add_argument("--testbench", action="store_true",
                        help="also write <name>_tb.v, a self-checking testbench from the table")
     build.add_argument("--json", action="store_true", help="print a JSON report instead of text")
+    build.add_argument("-q", "--quiet", action="store_true",
+                       help="leave out the caution block (for build logs; the cautions still "
+                            "apply and stay in the Verilog header)")
 
     reduce = sub.add_parser("reduce", help="minimize the states and write the reduced table")
     reduce.add_argument("spec", help="state table: .toml spec or .csv table")
@@ -134,6 +137,8 @@ def _parser() -> argparse.ArgumentParser:
     tim.add_argument("--clock-edge", default="rising", choices=("rising", "falling"))
     tim.add_argument("--delays", help="delay model TOML file (see README, Timing)")
     tim.add_argument("--json", action="store_true", help="print JSON")
+    tim.add_argument("-q", "--quiet", action="store_true",
+                     help="leave out the note that the delays are illustrative")
 
     diag = sub.add_parser("diagram", help="state diagram or netlist schematic (Graphviz DOT)")
     diag.add_argument("spec", help="state table: .toml spec or .csv table")
@@ -270,8 +275,9 @@ def _build(args: argparse.Namespace) -> int:
     print(design.verification.summary())
     for path, changed in written.items():
         print(f"{'wrote' if changed else 'unchanged'} {path}")
-    print()
-    print(CAUTION)
+    if not args.quiet:
+        print()
+        print(CAUTION)
     return 0
 
 
@@ -323,8 +329,9 @@ def _timing(args: argparse.Namespace) -> int:
     print(f"{table.name}: {design.storage.upper()} flip-flops, {design.encoding.method} encoding")
     for line in report.lines():
         print(line)
-    print("Delays are illustrative unless given with --delays: verify timing in the target "
-          "technology.")
+    if not args.quiet:
+        print("Delays are illustrative unless given with --delays: verify timing in the "
+              "target technology.")
     return 0
 
 
@@ -398,11 +405,13 @@ def _kmap(args: argparse.Namespace) -> int:
     names = [f.name for f in functions.functions]
     if args.signal and args.signal not in names:
         raise OptionError(f"no signal {args.signal!r}: this design has {', '.join(names)}")
-    if len(functions.variables) > 6:
-        raise OptionError(f"{len(functions.variables)} variables: Karnaugh maps go up to 6")
     for f in functions.functions:
         if args.signal in (None, f.name):
-            print(write_karnaugh(f, functions.variables))
+            try:
+                text = write_karnaugh(f, functions.variables)
+            except ValueError as exc:
+                raise OptionError(str(exc)) from None
+            print(text)
             print(f"  {design.equations[f.name]}")
             print()
     return 0
@@ -415,13 +424,18 @@ def _convert(args: argparse.Namespace) -> int:
                           "equations": {p: e.expression for p, e in result.equations.items()},
                           "verified": bool(result.design.verification)}, indent=2))
         return 0
-    print(f"{result.target.title} from a {result.using.title} "
+    print(f"{result.target.title} from {_article(result.using.title)} {result.using.title} "
           f"({result.target.equation}):")
     for eq in result.equations.values():
         print(f"  {eq}")
     assert result.design.verification is not None
     print(result.design.verification.summary())
     return 0
+
+
+def _article(title: str) -> str:
+    """``a`` or ``an`` before a name read letter by letter (an SR flip-flop, a JK one)."""
+    return "an" if title[:1].upper() in "AEFHILMNORSX" else "a"
 
 
 def _check(args: argparse.Namespace) -> int:

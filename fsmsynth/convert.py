@@ -22,7 +22,9 @@ class StorageConversion:
 
     ``equations`` maps each pin of the ``using`` cell (``J``, ``K``) to its equation over
     ``Q`` (the cell's state) and the pins of the target kind; ``design`` keeps the full
-    synthesis (netlist, Verilog, verification).
+    synthesis (netlist, Verilog, verification).  A target pin named like a pin of the cell
+    (D from a DE cell) is written with the target kind after it (``D_d``), so that no name
+    stands for two signals.
     """
 
     target: Storage
@@ -53,7 +55,8 @@ def convert_storage(target: str | Storage, using: str | Storage, *,
     want, have = storage_named(target), storage_named(using)
     machine = characteristic_machine(want)
     design = synthesize(machine, have, {"q0": 0, "q1": 1}, logic=logic, minimize=False)
-    variables = tuple("Q" if v == "Q0" else v for v in design.cover.variables)
+    variables = tuple("Q" if v == "Q0" else f"{v}_{want.name}" if v in have.pins else v
+                      for v in design.cover.variables)
     equations = {pin: Equation(signal=pin, variables=variables,
                                terms=design.equations[f"{pin}0"].terms) for pin in have.pins}
     return StorageConversion(target=want, using=have, equations=equations, design=design)

@@ -18,13 +18,21 @@ replace them with figures from your cell library.
 
 from __future__ import annotations
 
+import math
 from collections.abc import Iterable, Mapping, Sequence
 from dataclasses import dataclass, field
 
+from fsmsynth.errors import OptionError
 from fsmsynth.frozen import FrozenMap
 from fsmsynth.logic.cube import Cube
 
 GATE_KINDS = ("not", "and", "or")
+
+
+def finite_non_negative(value: object) -> bool:
+    """Whether ``value`` is a real number (not a bool) that is finite and >= 0."""
+    return (isinstance(value, (int, float)) and not isinstance(value, bool)
+            and math.isfinite(value) and value >= 0)
 
 
 @dataclass(frozen=True, slots=True)
@@ -47,6 +55,18 @@ class CostWeights:
     gate_input: float = 1.0
     flip_flop: Mapping[str, float] = field(default_factory=lambda: FrozenMap({}))
     default_flip_flop: float = 6.0
+
+    def __post_init__(self) -> None:
+        named = [("gate_input", self.gate_input), ("default_flip_flop", self.default_flip_flop)]
+        for group, values in (("gate", self.gate), ("flip_flop", self.flip_flop)):
+            if not isinstance(values, Mapping):
+                raise OptionError(f"cost weights: {group} must map names to numbers, "
+                                  f"not {values!r}")
+            named += [(f"{group}[{k!r}]", v) for k, v in values.items()]
+        for where, value in named:
+            if not finite_non_negative(value):
+                raise OptionError(f"cost weight {where} must be a finite number >= 0, "
+                                  f"not {value!r}")
 
     def flip_flop_weight(self, kind: str) -> float:
         """Weight of one flip-flop of ``kind``."""

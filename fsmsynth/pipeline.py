@@ -111,8 +111,12 @@ class Design:
         """Comment lines describing how the design was made."""
         codes = ", ".join(f"{s}={self.encoding.code_string(s)}"
                           for s in self.encoded_table.states)
-        return (f"storage: {self.storage}; encoding: {self.encoding.method} ({codes}); "
-                f"unused codes: {self.unused}\n"
+        storage = self.storage
+        if storage == "mixed":
+            storage += " (" + ", ".join(f"Q{b} {s.name}" for b, s in enumerate(self.storages)) + ")"
+        edges = sorted({ff.edge for ff in self.netlist.flip_flops}) or ["rising"]
+        return (f"storage: {storage}; clock edge: {', '.join(edges)}; "
+                f"encoding: {self.encoding.method} ({codes}); unused codes: {self.unused}\n"
                 "Caution: synchronise asynchronous inputs, and verify timing in the target "
                 "technology.")
 

@@ -28,6 +28,8 @@ from collections.abc import Mapping
 from dataclasses import dataclass, field
 from typing import Any
 
+from fsmsynth.cost import finite_non_negative
+from fsmsynth.errors import OptionError
 from fsmsynth.frozen import FrozenMap
 from fsmsynth.netlist import Netlist
 
@@ -40,6 +42,17 @@ class GateDelay:
     per_input: float = 0.0
     base_min: float | None = None
     per_input_min: float = 0.0
+
+    def __post_init__(self) -> None:
+        for key in ("base", "per_input", "base_min", "per_input_min"):
+            value = getattr(self, key)
+            if not (value is None and key == "base_min") and not finite_non_negative(value):
+                raise OptionError(f"gate delay {key} must be a finite number >= 0, "
+                                  f"not {value!r}")
+        if self.shortest(2) > self.longest(2) or self.per_input_min > self.per_input:
+            raise OptionError(f"gate delay: the shortest delay ({self.shortest(2):g} ps at 2 "
+                              f"inputs) exceeds the longest ({self.longest(2):g} ps); give "
+                              "base_min <= base and per_input_min <= per_input")
 
     def longest(self, fan_in: int) -> float:
         return self.base + self.per_input * max(0, fan_in - 1)
@@ -72,6 +85,21 @@ class Delays:
     # Synchronised inputs come from flip-flops on the same clock.
     input_delay: float = 60.0
     input_delay_min: float = 40.0
+
+    def __post_init__(self) -> None:
+        for key in ("clock_to_q", "clock_to_q_min", "setup", "hold", "input_delay",
+                    "input_delay_min"):
+            value = getattr(self, key)
+            if not finite_non_negative(value):
+                raise OptionError(f"delay {key} must be a finite number >= 0, not {value!r}")
+        for low, high in (("clock_to_q_min", "clock_to_q"), ("input_delay_min", "input_delay")):
+            if getattr(self, low) > getattr(self, high):
+                raise OptionError(f"delay {low} ({getattr(self, low):g} ps) exceeds {high} "
+                                  f"({getattr(self, high):g} ps): the shortest delay cannot be "
+                                  "longer than the longest")
+        for kind, model in self.gates.items():
+            if not isinstance(model, GateDelay):
+                raise OptionError(f"delay of gate {kind!r} must be a GateDelay, not {model!r}")
 
 
 @dataclass(frozen=True, slots=True)
@@ -197,14 +225,17 @@ def timing(design: Any, delays: Delays | None = None) -> TimingReport:
     netlist: Netlist = design.netlist if hasattr(design, "netlist") else design
     d = delays or Delays()
     starts: dict[str, tuple[str, str, float]] = {}
+    early_starts: dict[str, tuple[str, str, float]] = {}
     late: dict[str, float] = {}
     early: dict[str, float] = {}
     for ff in netlist.flip_flops:
         late[ff.q], early[ff.q] = d.clock_to_q, d.clock_to_q_min
         starts[ff.q] = (ff.name, f"{ff.storage.name} ff", d.clock_to_q)
+        early_starts[ff.q] = (ff.name, f"{ff.storage.name} ff", d.clock_to_q_min)
     for i in netlist.inputs:
         late[i], early[i] = d.input_delay, d.input_delay_min
         starts[i] = (i, "input", d.input_delay)
+        early_starts[i] = (i, "input", d.input_delay_min)
     longest = _arrivals(netlist, d, late, True)
     shortest = _arrivals(netlist, d, early, False)
 
@@ -229,7 +260,7 @@ def timing(design: Any, delays: Delays | None = None) -> TimingReport:
         path = _trace(netlist, longest, worst[1], d, True, starts)
         critical = (*path, PathStep(worst[2], "setup", worst[1], d.setup, worst[0]))
         hold_slack = hold[0]
-        hold_steps = (*_trace(netlist, shortest, hold[1], d, False, starts),
+        hold_steps = (*_trace(netlist, shortest, hold[1], d, False, early_starts),
                       PathStep(hold[2], "hold", hold[1], d.hold, hold[0] + d.hold))
     from_inputs = _arrivals(netlist, d, {i: d.input_delay for i in netlist.inputs}, True)
     io_delay = max((from_inputs[net][0] for _p, net in netlist.outputs if net in from_inputs),

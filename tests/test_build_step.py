@@ -9,9 +9,11 @@ from pathlib import Path
 
 import pytest
 
-from fsmsynth import synthesize
+from fsmsynth import StateTable, synthesize
 from fsmsynth.cli import main
+from fsmsynth.excite import Function
 from fsmsynth.formats import read_table
+from fsmsynth.logic.cube import Cube
 from fsmsynth.writers.dot import render, write_netlist_dot, write_state_diagram
 from fsmsynth.writers.kmap import write_karnaugh
 
@@ -98,8 +100,21 @@ def test_karnaugh_map_shows_dont_cares_in_gray_code_order() -> None:
     assert "timer_done=0" in lines[1] and "timer_done=1" in lines[1]
     assert lines[2].split()[:2] == ["Q0,Q1", "\\"]
     assert [ln.split()[0] for ln in lines[3:7]] == ["00", "10", "11", "01"]
-    with pytest.raises(ValueError, match="up to 6"):
-        write_karnaugh(design.functions.function("D1"), [f"v{i}" for i in range(7)])
+    seven = Function(name="f", on=(Cube.from_string("1111111"),), off=())
+    with pytest.raises(ValueError) as info:
+        write_karnaugh(seven, [f"v{i}" for i in range(7)])
+    assert str(info.value) == "f depends on 7 variables: Karnaugh maps go up to 6"
+
+
+def test_karnaugh_map_of_a_moore_output_leaves_out_the_inputs() -> None:
+    # A Moore output depends on the state alone, whatever the number of inputs (Moore 1956).
+    table = StateTable.from_rows(
+        name="wide", kind="moore", inputs=[f"x{i}" for i in range(6)], outputs=["y"],
+        reset="a", rows=[("a", "1-----", "b", None), ("a", "0-----", "a", None),
+                         ("b", "------", "a", None)], state_outputs={"a": "0", "b": "1"})
+    design = synthesize(table, "d")
+    text = write_karnaugh(design.functions.function("y"), design.functions.variables)
+    assert text == "y:\n- \\ Q0 0 1\n-      0 1\n"
 
 
 def test_kmap_cli(capsys: pytest.CaptureFixture[str]) -> None:

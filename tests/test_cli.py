@@ -97,3 +97,38 @@ def test_build_reports_removed_states_and_can_skip_minimization(
     assert report["states"]["given"] == 4 and report["states"]["encoded"] == 2
     main(["build", SORTER, "-o", str(tmp_path), "--no-minimize"])
     assert "conveyor_sorter: 4 states" in capsys.readouterr().out
+
+
+def test_quiet_build_leaves_out_the_caution_block(tmp_path: Path,
+                                                  capsys: pytest.CaptureFixture[str]) -> None:
+    assert main(["build", LOCKER, "-o", str(tmp_path), "--quiet"]) == 0
+    out = capsys.readouterr().out
+    assert "Caution" not in out and out.rstrip().endswith("parcel_locker.json")
+    # The Verilog header keeps its cautions.
+    assert "// Caution: synchronise" in (tmp_path / "parcel_locker.v").read_text()
+
+
+def test_header_names_every_bit_kind_and_the_clock_edge() -> None:
+    from fsmsynth import synthesize
+    from fsmsynth.formats import read_table
+
+    design = synthesize(read_table(LOCKER), ["jk", "d"], clock_edge="falling")
+    assert design.header().startswith(
+        "storage: mixed (Q0 jk, Q1 d); clock edge: falling; encoding: binary ")
+
+
+def test_convert_names_cell_and_target_pins_apart(capsys: pytest.CaptureFixture[str]) -> None:
+    # A D flip-flop from a DE cell: the cell's own D pin and the target's D are two signals.
+    assert main(["convert", "d", "--using", "de"]) == 0
+    assert capsys.readouterr().out.splitlines()[:3] == [
+        "D flip-flop from a D flip-flop with clock enable (Q+ = D):",
+        "  D = Q'", "  E = Q' D_d + Q D_d'"]
+    assert main(["convert", "jk", "--using", "sr"]) == 0
+    assert capsys.readouterr().out.startswith("JK flip-flop from an SR flip-flop ")
+
+
+def test_timing_and_its_model_are_public() -> None:
+    import fsmsynth
+
+    assert {"timing", "TimingReport", "Delays", "GateDelay", "NetlistError"} <= set(
+        fsmsynth.__all__)

@@ -58,6 +58,9 @@ def test_hold_violation_of_the_worked_example_and_its_fix() -> None:
     violated = timing(circuit(0), harris_delays())
     assert violated.worst_hold_slack == -5.0 and not violated.hold_met
     assert [s.element for s in violated.hold_path] == ["ffb", "g4", "ffb.d"]
+    # The path starts with the shortest clock-to-Q, t_ccq, as its arrival does.
+    assert [s.delay for s in violated.hold_path] == [30.0, 25.0, 60.0]
+    assert [s.arrival for s in violated.hold_path[:2]] == [30.0, 55.0]
     fixed = timing(circuit(1), harris_delays())
     assert fixed.worst_hold_slack == 20.0 and fixed.hold_met
 
@@ -94,3 +97,37 @@ def test_falling_edge_reaches_the_verilog_and_json() -> None:
     assert "posedge clk" not in design.verilog
     assert all(ff["edge"] == "falling" for ff in json.loads(design.json)["flip_flops"])
     assert timing(design).edge == "falling"
+
+
+@pytest.mark.parametrize(("changes", "message"), [
+    ({"setup": float("nan")}, "delay setup must be a finite number >= 0, not nan"),
+    ({"hold": float("inf")}, "delay hold must be a finite number >= 0, not inf"),
+    ({"clock_to_q": -1.0}, "delay clock_to_q must be a finite number >= 0, not -1.0"),
+    ({"clock_to_q_min": 70.0}, "delay clock_to_q_min (70 ps) exceeds clock_to_q (60 ps): the "
+                               "shortest delay cannot be longer than the longest"),
+])
+def test_impossible_delays_are_rejected(changes: dict[str, float], message: str) -> None:
+    import dataclasses
+
+    from fsmsynth.errors import OptionError
+
+    with pytest.raises(OptionError) as info:
+        dataclasses.replace(Delays(), **changes)
+    assert str(info.value) == message
+
+
+def test_impossible_delays_in_a_file_name_the_file(tmp_path: Path,
+                                                   capsys: pytest.CaptureFixture[str]) -> None:
+    delays = tmp_path / "d.toml"
+    for text, message in [
+            ("setup = nan\n", "setup must be a finite number >= 0, not nan"),
+            ("clock_to_q_min = 90\n", "delay clock_to_q_min (90 ps) exceeds clock_to_q (60 ps): "
+                                      "the shortest delay cannot be longer than the longest"),
+            ("[gate.and]\nbase_min = 99\n", "[gate.and]: gate delay: the shortest delay "
+                                             "(102 ps at 2 inputs) exceeds the longest (33 ps); "
+                                             "give base_min <= base and per_input_min <= "
+                                             "per_input")]:
+        delays.write_text(text)
+        assert main(["timing", str(EXAMPLES / "greenhouse_vent.toml"), "--delays",
+                     str(delays)]) == 2
+        assert capsys.readouterr().err == f"fsmsynth: error: {delays}: {message}\n"

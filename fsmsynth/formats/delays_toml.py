@@ -20,7 +20,7 @@ from __future__ import annotations
 from dataclasses import fields, replace
 from pathlib import Path
 
-from fsmsynth.errors import SpecFileError
+from fsmsynth.errors import OptionError, SpecFileError
 from fsmsynth.formats.text_files import non_negative, read_toml_table
 from fsmsynth.frozen import FrozenMap
 from fsmsynth.timing import Delays, GateDelay
@@ -50,6 +50,12 @@ def read_delays(path: str | Path) -> Delays:
             raise SpecFileError(f"[gate.{kind}] takes {', '.join(sorted(gate_keys))}",
                                 path=str(p))
         base = gates.get(kind, GateDelay(0.0))
-        gates[kind] = replace(base, **{k: non_negative(v, f"gate.{kind}.{k}", p)
-                                       for k, v in spec.items()})
-    return replace(defaults, gates=FrozenMap(gates), **changes)
+        try:
+            gates[kind] = replace(base, **{k: non_negative(v, f"gate.{kind}.{k}", p)
+                                           for k, v in spec.items()})
+        except OptionError as exc:
+            raise SpecFileError(f"[gate.{kind}]: {exc}", path=str(p)) from None
+    try:
+        return replace(defaults, gates=FrozenMap(gates), **changes)
+    except OptionError as exc:
+        raise SpecFileError(str(exc), path=str(p)) from None

@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import math
 import tomllib
 from pathlib import Path
 from typing import Any
@@ -30,6 +31,8 @@ def read_toml_table(path: str | Path) -> dict[str, Any]:
 
 def non_negative(value: object, where: str, path: str | Path) -> float:
     """``value`` as a float, or a SpecFileError when it is not a number >= 0."""
-    if isinstance(value, bool) or not isinstance(value, (int, float)) or value < 0:
-        raise SpecFileError(f"{where} must be a number >= 0, not {value!r}", path=str(path))
+    if (isinstance(value, bool) or not isinstance(value, (int, float))
+            or not math.isfinite(value) or value < 0):
+        raise SpecFileError(f"{where} must be a finite number >= 0, not {value!r}",
+                            path=str(path))
     return float(value)

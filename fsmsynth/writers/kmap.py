@@ -11,6 +11,7 @@ from __future__ import annotations
 from collections.abc import Sequence
 
 from fsmsynth.excite import Function
+from fsmsynth.logic.cube import Cube, bits_of
 
 
 def _gray(bits: int) -> list[int]:
@@ -25,17 +26,47 @@ def _value(function: Function, point: int) -> str:
     return "-"
 
 
+def support(function: Function) -> list[int]:
+    """The variables the specification of ``function`` mentions, lowest first.
+
+    A variable that no on- or off-cube fixes cannot change the function's value anywhere
+    it is specified (a Moore output does not depend on the inputs), so it needs no axis.
+    """
+    care = 0
+    for cube in (*function.on, *function.off):
+        care |= cube.care
+    return list(bits_of(care))
+
+
+def _project(function: Function, keep: Sequence[int]) -> Function:
+    def cube(c: Cube) -> Cube:
+        care = value = 0
+        for new, old in enumerate(keep):
+            care |= (c.care >> old & 1) << new
+            value |= (c.value >> old & 1) << new
+        return Cube(care=care, value=value)
+
+    return Function(name=function.name, on=tuple(map(cube, function.on)),
+                    off=tuple(map(cube, function.off)))
+
+
 def write_karnaugh(function: Function, variables: Sequence[str]) -> str:
-    """The map of ``function`` over ``variables`` (variable 0 first, as in its cubes).
+    """The map of ``function`` over the ``variables`` it depends on (variable 0 first, as in
+    its cubes; see :func:`support`).
 
     Raises
     ------
     ValueError
-        For more than 6 variables.
+        When the function depends on more than 6 variables.
     """
+    keep = support(function)
+    if len(keep) > 6:
+        raise ValueError(f"{function.name} depends on {len(keep)} variables: Karnaugh maps "
+                         "go up to 6")
+    if len(keep) < len(variables):
+        function = _project(function, keep)
+        variables = [variables[i] for i in keep]
     n = len(variables)
-    if n > 6:
-        raise ValueError(f"{function.name} has {n} variables: Karnaugh maps go up to 6")
     extra = max(0, n - 4)
     core = n - extra
     row_bits = core // 2
