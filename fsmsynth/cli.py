@@ -6,6 +6,7 @@ import argparse
 import csv
 import io
 import json
+import math
 import os
 import sys
 from collections.abc import Sequence
@@ -74,6 +75,17 @@ def _positive(text: str) -> int:
     return value
 
 
+def _seconds(text: str) -> float:
+    """argparse type: a finite number of seconds greater than 0."""
+    try:
+        value = float(text)
+    except ValueError:
+        value = math.nan
+    if not (math.isfinite(value) and value > 0):
+        raise argparse.ArgumentTypeError(f"{text!r}: give a finite number of seconds > 0")
+    return value
+
+
 def _list_arg(text: str) -> list[str]:
     return [part.strip() for part in text.split(",") if part.strip()]
 
@@ -96,7 +108,11 @@ def _parser() -> argparse.ArgumentParser:
     build.add_argument("--seed", type=int, default=0, help="seed of the anneal search (0)")
     build.add_argument("--budget", type=int, help="steps of the anneal search (default 400)")
     build.add_argument("--jobs", type=_positive, default=1,
-                       help="worker processes for the exhaustive search (default 1)")
+                       help="worker processes for a searched encoding (default 1)")
+    build.add_argument("--time-limit", type=_seconds, default=None,
+                       help="seconds for a searched encoding; then the best found so far")
+    build.add_argument("--force", action="store_true",
+                       help="run an exhaustive search however many assignments it has")
     build.add_argument("--width", type=int,
                        help="code width in bits for adjacency, exhaustive and anneal")
     build.add_argument("--unused", default="dont-care", choices=UNUSED_POLICIES,
@@ -125,7 +141,7 @@ def _parser() -> argparse.ArgumentParser:
     reduce.add_argument("-o", "--out", help="write the reduced spec here (default: print it)")
     reduce.add_argument("--keep-unreachable", action="store_true",
                         help="class every state, reachable from reset or not")
-    reduce.add_argument("--time-limit", type=float, default=10.0,
+    reduce.add_argument("--time-limit", type=_seconds, default=10.0,
                         help="seconds for the exact search (default 10)")
     reduce.add_argument("--json", action="store_true", help="print a JSON report instead of text")
 
@@ -163,7 +179,7 @@ def _parser() -> argparse.ArgumentParser:
                       help=f"comma-separated (default {','.join(DEFAULT_ENCODINGS)})")
     comp.add_argument("--logic", default="heuristic", choices=LOGIC_METHODS)
     comp.add_argument("--weights", help="cost weights TOML file (see README, Cost)")
-    comp.add_argument("--jobs", type=int, default=1,
+    comp.add_argument("--jobs", type=_positive, default=1,
                       help="run designs on this many worker processes (default 1)")
     fmt = comp.add_mutually_exclusive_group()
     fmt.add_argument("--json", action="store_true", help="print JSON")
@@ -201,7 +217,8 @@ def _report(design: Design) -> dict[str, object]:
         "unused": design.unused,
         "assignment": None if design.assignment is None else {
             "cost": design.assignment.cost, "evaluated": design.assignment.evaluated,
-            "proven": design.assignment.proven, "interrupted": design.assignment.interrupted},
+            "proven": design.assignment.proven, "interrupted": design.assignment.interrupted,
+            "timed_out": design.assignment.timed_out},
         "states": {"given": len(design.table.states), "encoded": len(design.encoded_table.states),
                    "merged": [list(c) for c in m.merged] if m else [],
                    "unreachable": list(m.unreachable) if m else [],
@@ -220,7 +237,8 @@ def _build(args: argparse.Namespace) -> int:
     design = synthesize(table, _storage_arg(args.storage), _encoding_arg(args.encoding),
                         unused=args.unused, minimize=not args.no_minimize, logic=args.logic,
                         weights=_weights_arg(args.weights), seed=args.seed, budget=args.budget,
-                        width=args.width, clock_edge=args.clock_edge, jobs=args.jobs)
+                        width=args.width, clock_edge=args.clock_edge, jobs=args.jobs,
+                        time_limit=args.time_limit, force=args.force)
     out = Path(args.out)
     files = {out / f"{table.name}.v": design.verilog, out / f"{table.name}.json": design.json}
     if args.testbench:
@@ -249,6 +267,7 @@ def _build(args: argparse.Namespace) -> int:
     if design.assignment is not None:
         a = design.assignment
         ending = (", interrupted: best so far" if a.interrupted else
+                  ", time limit reached: best so far" if a.timed_out else
                   ", proven best" if a.proven else "")
         print(f"state assignment ({design.encoding.method}): cost {a.cost:g} after "
               f"{a.evaluated} assignments{ending}")

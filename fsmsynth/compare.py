@@ -4,7 +4,7 @@ from __future__ import annotations
 
 from collections.abc import Mapping, Sequence
 from concurrent.futures import Executor
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 from fsmsynth.cost import DEFAULT_WEIGHTS, CostWeights
 from fsmsynth.formats.spec_toml import parse_spec
@@ -80,13 +80,27 @@ def compare(table: StateTable, storages: Sequence[str] = DEFAULT_STORAGES,
         As for :func:`fsmsynth.synthesize`.
     """
     spec = write_spec(table)
-    jobs = [(s, e) for s in storages for e in encodings]
+    # "best" is the cheapest of every single kind and the per-bit choice: run each of those
+    # once, shared with the single kinds asked for, instead of again inside synthesize().
+    kinds = [k for k in STORAGES if k in storages or "best" in storages]
+    jobs = [(s, e) for s in [*kinds, *(["per-bit"] if "best" in storages else [])]
+            for e in encodings]
     if executor is None:
-        rows = [_one(spec, s, e, weights, logic, minimize, unused) for s, e in jobs]
+        done = [_one(spec, s, e, weights, logic, minimize, unused) for s, e in jobs]
     else:
         futures = [executor.submit(_one, spec, s, e, weights, logic, minimize, unused)
                    for s, e in jobs]
-        rows = [f.result() for f in futures]
+        done = [f.result() for f in futures]
+    by_job = dict(zip(jobs, done))
+    rows = []
+    for s in storages:
+        for e in encodings:
+            if s != "best":
+                rows.append(by_job[(s, e)])
+                continue
+            options = [by_job[(k, e)] for k in STORAGES] + [by_job[("per-bit", e)]]
+            cheapest = min(options, key=lambda r: (r.total, r.cost["gate_inputs"]))
+            rows.append(replace(cheapest, storage="best"))
     ranked = sorted(rows, key=lambda r: (r.total, r.cost["gate_inputs"], r.storage,
                                          r.encoding))
     return Comparison(machine=table.name, rows=tuple(ranked))

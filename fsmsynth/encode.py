@@ -12,6 +12,7 @@ from dataclasses import dataclass
 
 from fsmsynth.errors import EncodingError, OptionError
 from fsmsynth.frozen import FrozenMap
+from fsmsynth.logic.cube import Cube, complement_cubes
 from fsmsynth.table import StateTable
 
 METHODS = ("binary", "gray", "one-hot")
@@ -40,9 +41,14 @@ class Encoding:
         return format(self.codes[state], f"0{self.width}b")
 
     def unused_codes(self) -> list[int]:
-        """Codes no state has, in increasing order."""
+        """Codes no state has, in increasing order (``2**width`` work: see :meth:`unused_cubes`)."""
         used = set(self.codes.values())
         return [c for c in range(1 << self.width) if c not in used]
+
+    def unused_cubes(self) -> list[Cube]:
+        """The codes no state has, as disjoint cubes over the state bits (bit 0 is variable
+        0); costs O(states x width), so wide one-hot and given codes stay cheap."""
+        return complement_cubes(self.codes.values(), self.width)
 
 
 

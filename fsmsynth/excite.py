@@ -109,8 +109,18 @@ def excite(table: StateTable, encoding: Encoding,
             add_outputs(Cube.minterm(encoding.codes[state], k), table.output_cube_of(state))
     if unused == "safe":
         reset_code = encoding.codes[table.reset]
-        for code in encoding.unused_codes():
-            add_transition(Cube.minterm(code, k), code, reset_code)
+        for region in encoding.unused_cubes():
+            # Each bit's pins depend only on that bit's present value: split the region of
+            # unused codes on it where it is free, never into single codes.
+            for b, storage in enumerate(per_bit):
+                for q in (0, 1):
+                    part = region.intersection(Cube(care=1 << b, value=q << b))
+                    if part is None:
+                        continue
+                    pins = storage.pin_values(q, reset_code >> b & 1)
+                    for pin, v in zip(storage.pins, pins):
+                        if v != "-":
+                            (on if v == "1" else off)[pin_signal(storage, pin, b)].append(part)
     elif unused != "dont-care":
         raise OptionError(f"unused codes {unused!r}: use 'dont-care' or 'safe'")
 

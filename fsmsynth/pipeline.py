@@ -2,6 +2,7 @@
 
 from __future__ import annotations
 
+import math
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, replace
 from functools import cached_property, partial
@@ -31,6 +32,9 @@ from fsmsynth.writers.json_netlist import write_json_netlist
 from fsmsynth.writers.verilog import write_verilog
 
 UNUSED_POLICIES = ("dont-care", "safe")
+MAX_EXTRA_WIDTH = 3
+"""Searched encodings take codes of up to this many bits more than the fewest (or one-hot
+width, when that is more)."""
 
 
 @dataclass(frozen=True)
@@ -129,7 +133,8 @@ def synthesize(table: StateTable, storage: StorageChoice = "d",
                unused: str = "dont-care", weights: CostWeights = DEFAULT_WEIGHTS,
                logic: str = "heuristic", minimize: bool = True, check: bool = True,
                seed: int = 0, budget: int | None = None, width: int | None = None,
-               clock_edge: str = "rising", jobs: int = 1) -> Design:
+               clock_edge: str = "rising", jobs: int = 1, time_limit: float | None = None,
+               force: bool = False) -> Design:
     """Synthesize ``table`` into equations and a netlist, and prove the result.
 
     Parameters
@@ -139,9 +144,10 @@ def synthesize(table: StateTable, storage: StorageChoice = "d",
     storage:
         Flip-flop kind for every state bit: ``"d"``, ``"t"``, ``"jk"``, ``"sr"`` or ``"de"``
         (D with clock enable); a sequence or a mapping giving the kind of each state bit
-        (bit 0 first); or ``"best"``: for the chosen encoding each bit's excitation is
-        independent, so each bit gets the kind whose logic is cheapest, and the result is
-        never costlier than any single kind for all bits.
+        (bit 0 first); or ``"per-bit"``: for the chosen encoding each bit's excitation is
+        independent, so each bit gets the kind whose own logic is cheapest; or ``"best"``:
+        the cheapest of ``"per-bit"`` and every single kind for all bits, so never costlier
+        than any of them.
     encoding:
         ``"binary"``, ``"gray"``, ``"one-hot"`` or a mapping from state to code
         (see :func:`fsmsynth.encode.encode`); or a search for cheap logic
@@ -167,8 +173,15 @@ def synthesize(table: StateTable, storage: StorageChoice = "d",
         For ``"anneal"``: the random seed (same seed, same codes) and the number of steps
         (default 400).  Ctrl-C stops a search and keeps the best found.
     jobs:
-        Worker processes that share the scoring of ``"exhaustive"`` (default 1: all in
-        this process).  Two on two cores halve the time of an 8-state search.
+        Worker processes that share the scoring of a searched encoding (default 1: all in
+        this process); the result is the same.  Two on two cores halve the time of an
+        8-state exhaustive search.
+    time_limit:
+        Seconds for a searched encoding (default: none); when they run out, the best
+        assignment found so far is used and ``design.assignment.timed_out`` is set.
+    force:
+        Run ``"exhaustive"`` even beyond :data:`fsmsynth.assign.EXHAUSTIVE_LIMIT`
+        assignments (refused otherwise, naming the count).
     clock_edge:
         ``"rising"`` (default) or ``"falling"``: the edge every flip-flop samples on.
     width:
@@ -202,7 +215,7 @@ def synthesize(table: StateTable, storage: StorageChoice = "d",
     search: SearchResult | None = None
     if isinstance(encoding, str) and encoding in SEARCHES:
         codes, search = _search(work, encoding, storage, unused, weights, logic, seed, budget,
-                                width, jobs)
+                                width, jobs, time_limit, force)
     else:
         if width is not None:
             raise OptionError("width applies to adjacency, exhaustive and anneal encodings")
@@ -213,6 +226,10 @@ def synthesize(table: StateTable, storage: StorageChoice = "d",
         designs = [_build(table, reduction, work, codes, c, unused, weights, logic)
                    for c in dict.fromkeys(candidates)]
         chosen = min(designs, key=lambda d: (d.cost.total, d.cost.gate_inputs))
+    elif storage == "per-bit":
+        chosen = _build(table, reduction, work, codes,
+                        _cheapest_per_bit(work, codes, unused, weights, logic), unused, weights,
+                        logic)
     else:
         chosen = _build(table, reduction, work, codes, _per_bit(storage, codes.width), unused,
                         weights, logic)
@@ -228,20 +245,36 @@ def synthesize(table: StateTable, storage: StorageChoice = "d",
 
 def _search(table: StateTable, method: str, storage: StorageChoice, unused: str,
             weights: CostWeights, logic: str, seed: int, budget: int | None,
-            width: int | None, jobs: int) -> tuple[Encoding, SearchResult | None]:
+            width: int | None, jobs: int, time_limit: float | None,
+            force: bool) -> tuple[Encoding, SearchResult | None]:
     """Codes chosen by one of the searches of :mod:`fsmsynth.assign`."""
-    k = width if width is not None else min_width(len(table.states))
-    if k < min_width(len(table.states)):
-        raise OptionError(f"width {k} is too small for {len(table.states)} states")
+    n = len(table.states)
+    k = width if width is not None else min_width(n)
+    if isinstance(k, bool) or not isinstance(k, int) or k < min_width(n):
+        raise OptionError(f"width {k!r} is too small for {n} states: give a whole number "
+                          f"of at least {min_width(n)} bits")
+    if k > max(min_width(n) + MAX_EXTRA_WIDTH, n):
+        raise OptionError(f"width {k} for {n} states: give at most "
+                          f"{max(min_width(n) + MAX_EXTRA_WIDTH, n)} bits (wider codes cost "
+                          "logic and search time without helping)")
+    if isinstance(jobs, bool) or not isinstance(jobs, int) or jobs < 1:
+        raise OptionError(f"jobs {jobs!r}: give a whole number of at least 1")
+    if budget is not None and (isinstance(budget, bool) or not isinstance(budget, int)
+                               or budget < 0):
+        raise OptionError(f"budget {budget!r}: give a whole number of steps >= 0")
+    if time_limit is not None and not (isinstance(time_limit, (int, float))
+                                       and math.isfinite(time_limit) and time_limit > 0):
+        raise OptionError(f"time limit {time_limit!r}: give a finite number of seconds > 0")
     # A partial of a module function, not a closure: worker processes receive the scorer.
-    kinds = partial(_per_bit, "d" if storage == "best" else storage)
+    kinds = partial(_per_bit, "d" if storage in ("best", "per-bit") else storage)
     score = Scorer(table=table, storages=kinds, unused=unused, weights=weights, logic=logic)
     if method == "adjacency":
-        result = adjacency_search(score, table, k)
+        result = adjacency_search(score, table, k, jobs=jobs, time_limit=time_limit)
     elif method == "exhaustive":
-        result = exhaustive_search(score, len(table.states), k, jobs)
+        result = exhaustive_search(score, n, k, jobs, time_limit=time_limit, force=force)
     else:
-        result = anneal_search(score, table, k, seed, 400 if budget is None else budget)
+        result = anneal_search(score, table, k, seed, 400 if budget is None else budget,
+                               jobs=jobs, time_limit=time_limit)
     return Encoding(method=method, width=result.width,
                     codes=FrozenMap(dict(zip(table.states, result.codes)))), result
 
@@ -304,7 +337,7 @@ def _build(table: StateTable, reduction: StateMinimization | None, work: StateTa
 
 def _proved(design: Design) -> Design:
     """The design with its verification, or VerificationError with the counterexample."""
-    safe = design.encoding.unused_codes() if design.unused == "safe" else ()
+    safe = design.encoding.unused_cubes() if design.unused == "safe" else ()
     proof = verify(design.netlist, design.table, safe_unused=safe)
     if not proof:
         raise VerificationError(f"{design.table.name}: {proof.summary()}", proof)

@@ -20,19 +20,27 @@ incompletely specified sequential networks", *IEEE Trans. Electronic Computers* 
 
 from __future__ import annotations
 
+import math
 import time
 from collections import deque
 from collections.abc import Mapping, Sequence
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from typing import Any
 
 import numpy as np
 from scipy.sparse import csr_matrix
 from scipy.sparse.csgraph import breadth_first_order
 
+from fsmsynth.errors import OptionError
 from fsmsynth.frozen import FrozenMap
-from fsmsynth.logic.cube import Cube, bits_of, partition
+from fsmsynth.logic import bdd
+from fsmsynth.logic.cube import Cube, bits_of, partition, partition_within
+from fsmsynth.regions import StateRegions, completely_specified, state_regions
 from fsmsynth.table import StateTable
+
+LOCAL_ABOVE = 256
+"""Above this many input classes of the whole table, reduction compares states on their own
+rows (:mod:`fsmsynth.regions`) instead of tabulating every state over every class."""
 
 
 @dataclass(frozen=True, slots=True)
@@ -51,11 +59,17 @@ class StateMinimization:
         Whether the state count is proven minimal (False only when the time limit cut the
         exact search short).
     method:
-        ``"hopcroft"`` (completely specified) or ``"closed cover"`` (incompletely specified).
+        ``"hopcroft"`` or ``"moore rounds"`` (completely specified) or ``"closed cover"``
+        (incompletely specified).
     unreachable:
         Original states dropped because reset never reaches them.
     input_classes:
-        How many input classes the rows distinguish (the columns the algorithms used).
+        How many input classes the algorithms used: those the rows of the whole table
+        distinguish, or with ``input_partition == "local"`` the most rows of one state.
+    input_partition:
+        ``"whole table"``: states were tabulated over the input classes all rows
+        distinguish; ``"local"``: there were more than :data:`LOCAL_ABOVE` of them, and
+        states were compared on their own rows.  Both give the same classes.
     """
 
     table: StateTable
@@ -64,6 +78,7 @@ class StateMinimization:
     method: str
     unreachable: tuple[str, ...]
     input_classes: int
+    input_partition: str = "whole table"
 
     def class_of(self, state: str) -> str:
         """The reduced state standing for original ``state`` (the first, where classes overlap)."""
@@ -154,8 +169,10 @@ class _RowArrays:
                    cubes=tuple(cube_id), outputs=tuple(texts))
 
 
-def _tabulate(table: StateTable, rows: _RowArrays, kept: np.ndarray) -> _Tabulation:
-    """Tabulate the states where ``kept`` is set over the input classes their rows distinguish.
+def _tabulate(table: StateTable, rows: _RowArrays, kept: np.ndarray,
+              limit: int | None = None) -> _Tabulation | None:
+    """Tabulate the states where ``kept`` is set over the input classes their rows distinguish,
+    or ``None`` when they distinguish more than ``limit``.
 
     ``kept`` must be closed under specified transitions (all states, or the reachable ones).
     """
@@ -168,7 +185,10 @@ def _tabulate(table: StateTable, rows: _RowArrays, kept: np.ndarray) -> _Tabulat
     used, row_cube = np.unique(rows.cube[chosen], return_inverse=True)
     row_cube = row_cube.reshape(-1)
     cubes = [Cube.from_string(rows.cubes[c]) for c in used.tolist()]
-    classes = partition(cubes)
+    found = partition_within(cubes, limit)
+    if found is None:
+        return None
+    classes = found
     inside = [[a for a, cls in enumerate(classes) if cube.contains(cls)] for cube in cubes]
     n, k = len(states), len(classes)
     # Expand every row into the (state, input class) cells it covers.
@@ -256,7 +276,12 @@ def minimize_states(table: StateTable, reachable_only: bool = True, *,
     if reachable_only:
         kept = _reachable(rows, len(table.states), table.states.index(table.reset))
     unreachable = tuple(s for s, k in zip(table.states, kept.tolist()) if not k)
-    tab = _tabulate(table, rows, kept)
+    if not (isinstance(time_limit, (int, float)) and math.isfinite(time_limit)
+            and time_limit > 0):
+        raise OptionError(f"time limit {time_limit!r}: give a finite number of seconds > 0")
+    tab = _tabulate(table, rows, kept, LOCAL_ABOVE)
+    if tab is None:
+        return _minimize_local(table, rows, kept, unreachable, time_limit)
     if tab.complete:
         # States start together when their outputs agree under every input class (there
         # is always at least one class; Moore outputs are the same in all of them).
@@ -264,7 +289,9 @@ def minimize_states(table: StateTable, reachable_only: bool = True, *,
         if table.kind == "mealy":
             for a in range(1, tab.output_id.shape[1]):
                 initial = _pair_rank(initial, tab.output_id[:, a])
-        return _from_partition(table, rows, tab, _refine(tab.next_state, initial), unreachable)
+        return _from_partition(table, rows, tab.states, tab.kept,
+                               _refine(tab.next_state, initial), unreachable,
+                               len(tab.classes), "hopcroft")
     beh = _Behaviour.of(tab)
     cover, proven = _closed_cover(beh, time_limit)
     return _from_cover(table, beh, cover, proven, unreachable)
@@ -403,7 +430,7 @@ def _hopcroft(next_state: np.ndarray, initial: list[int], count: int) -> list[in
     return block_of
 
 
-def _ordered(table: StateTable, beh: _Behaviour, groups: Sequence[frozenset[int]],
+def _ordered(table: StateTable, beh: _AnyBehaviour, groups: Sequence[frozenset[int]],
              reset_group: int) -> list[int]:
     """Group indices: the reset's first, then by the declaration order of first members."""
     rank = {s: i for i, s in enumerate(table.states)}
@@ -414,7 +441,7 @@ def _ordered(table: StateTable, beh: _Behaviour, groups: Sequence[frozenset[int]
     return [reset_group, *rest]
 
 
-def _names(table: StateTable, beh: _Behaviour, groups: Sequence[frozenset[int]],
+def _names(table: StateTable, beh: _AnyBehaviour, groups: Sequence[frozenset[int]],
            order: Sequence[int]) -> dict[int, str]:
     rank = {s: i for i, s in enumerate(table.states)}
     names: dict[int, str] = {}
@@ -427,35 +454,37 @@ def _names(table: StateTable, beh: _Behaviour, groups: Sequence[frozenset[int]],
     return names
 
 
-def _from_partition(table: StateTable, rows: _RowArrays, tab: _Tabulation, block: np.ndarray,
-                    unreachable: tuple[str, ...]) -> StateMinimization:
+def _from_partition(table: StateTable, rows: _RowArrays, states: tuple[str, ...],
+                    kept: np.ndarray, block: np.ndarray, unreachable: tuple[str, ...],
+                    input_classes: int, method: str) -> StateMinimization:
     """Reduced table of a completely specified machine: each class keeps its first member's
-    rows (first in declaration order), named after that member; the reset's class first."""
-    n = len(tab.states)
+    rows (first in declaration order), named after that member; the reset's class first.
+    ``states`` are the kept states in declaration order, ``block`` their classes."""
+    n = len(states)
     count = int(block.max(initial=-1)) + 1
-    # tab.states are in declaration order, so a class's first member has its lowest index.
+    # states are in declaration order, so a class's first member has its lowest index.
     first = np.full(count, n, dtype=np.int64)
     np.minimum.at(first, block, np.arange(n, dtype=np.int64))
-    reset = tab.states.index(table.reset)
+    reset = states.index(table.reset)
     order = [int(block[reset])] + [g for g in np.argsort(first, kind="stable").tolist()
                                     if g != block[reset]]
     first_of = first.tolist()
-    names = [tab.states[first_of[g]] for g in range(count)]
+    names = [states[first_of[g]] for g in range(count)]
     by_block = np.argsort(block, kind="stable").tolist()
     bounds = np.concatenate(([0], np.cumsum(np.bincount(block, minlength=count)))).tolist()
-    member_names = [tab.states[i] for i in by_block]
+    member_names = [states[i] for i in by_block]
     classes = {names[g]: frozenset(member_names[bounds[g]:bounds[g + 1]]) for g in order}
     if count == len(table.states) and table.states[0] == table.reset:
         # Nothing merged or dropped and the reset already first: the table is its own reduction.
         reduced = table
     else:
         # States that are not their class's first member, renamed to it.
-        renamed = {tab.states[i]: names[g]
+        renamed = {states[i]: names[g]
                    for i, g in enumerate(block.tolist()) if first_of[g] != i}
         # The rows of each class's first member, classes in order, rows in table order.
         position = np.empty(count, dtype=np.int64)
         position[order] = np.arange(count)
-        in_tab = np.where(tab.kept, np.cumsum(tab.kept) - 1, -1)
+        in_tab = np.where(kept, np.cumsum(kept) - 1, -1)
         present = in_tab[rows.present]
         first_row = present >= 0
         first_row[first_row] = first[block[present[first_row]]] == present[first_row]
@@ -470,8 +499,8 @@ def _from_partition(table: StateTable, rows: _RowArrays, tab: _Tabulation, block
                                       states=[names[g] for g in order],
                                       state_outputs=state_outputs)
     return StateMinimization(table=reduced, classes=FrozenMap(classes), proven=True,
-                             method="hopcroft", unreachable=unreachable,
-                             input_classes=len(tab.classes))
+                             method=method, unreachable=unreachable,
+                             input_classes=input_classes)
 
 
 # --- incompletely specified: compatibles and a minimum closed cover -----------------------
@@ -480,13 +509,15 @@ def _conflict(a: str, b: str) -> bool:
     return any(x != y and "-" not in (x, y) for x, y in zip(a, b))
 
 
-def compatible_pairs(beh: _Behaviour) -> list[int]:
+def compatible_pairs(beh: _AnyBehaviour) -> list[int]:
     """Adjacency bit masks of the compatibility graph, by the implication chart.
 
     A pair is incompatible when the two states give different specified outputs under some
     input class, or when some input class implies an incompatible pair; marking is
     propagated backwards from each incompatible pair through the pairs that imply it.
     """
+    if isinstance(beh, _LocalBehaviour):
+        return beh.compatible_pairs()
     n, k = len(beh.states), len(beh.classes)
     incompatible: set[tuple[int, int]] = set()
     implied_by: dict[tuple[int, int], list[tuple[int, int]]] = {}
@@ -516,11 +547,16 @@ def compatible_pairs(beh: _Behaviour) -> list[int]:
     return adjacency
 
 
-def maximal_compatibles(adjacency: Sequence[int]) -> list[int]:
-    """Maximal cliques of the compatibility graph (Bron-Kerbosch with pivoting), as bit masks."""
+def maximal_compatibles(adjacency: Sequence[int], deadline: float = math.inf) -> list[int]:
+    """Maximal cliques of the compatibility graph (Bron-Kerbosch with pivoting), as bit masks.
+
+    Raises ``_OutOfTime`` past ``deadline`` (a :func:`time.monotonic` value).
+    """
     result: list[int] = []
 
     def expand(r: int, p: int, x: int) -> None:
+        if time.monotonic() > deadline:
+            raise _OutOfTime
         if not p and not x:
             result.append(r)
             return
@@ -535,8 +571,10 @@ def maximal_compatibles(adjacency: Sequence[int]) -> list[int]:
     return sorted(result, key=lambda m: (-m.bit_count(), m))
 
 
-def _implied(beh: _Behaviour, members: int) -> frozenset[int]:
+def _implied(beh: _AnyBehaviour, members: int) -> frozenset[int]:
     """Class set: the next-state sets a compatible implies that it does not contain itself."""
+    if isinstance(beh, _LocalBehaviour):
+        return beh.implied(members)
     out = set()
     for a in range(len(beh.classes)):
         nxt = 0
@@ -557,7 +595,7 @@ class _OutOfTime(Exception):
     pass
 
 
-def prime_compatibles(beh: _Behaviour, adjacency: Sequence[int],
+def prime_compatibles(beh: _AnyBehaviour, adjacency: Sequence[int],
                       deadline: float) -> list[tuple[int, frozenset[int]]]:
     """Prime compatibles with their class sets (Grasselli and Luccio 1965).
 
@@ -566,14 +604,23 @@ def prime_compatibles(beh: _Behaviour, adjacency: Sequence[int],
     cover closed.  Every compatible is a subset of a maximal one, so all are generated from
     those, largest first.
     """
-    maximal = maximal_compatibles(adjacency)
+    maximal = maximal_compatibles(adjacency, deadline)
     compatibles: set[int] = set()
     for m in maximal:
+        if not _implied(beh, m):
+            # It implies nothing, so it dominates each of its subsets: none is prime.
+            compatibles.add(m)
+            continue
         members = list(bits_of(m))
         stack = [0]
         # every subset of a clique is a clique
         for v in members:
-            stack += [s | 1 << v for s in stack]
+            grown = []
+            for s in stack:
+                grown.append(s | 1 << v)
+                if len(grown) & 0xFFF == 0 and time.monotonic() > deadline:
+                    raise _OutOfTime
+            stack += grown
             if time.monotonic() > deadline:
                 raise _OutOfTime
         compatibles.update(s for s in stack if s)
@@ -587,7 +634,7 @@ def prime_compatibles(beh: _Behaviour, adjacency: Sequence[int],
     return primes
 
 
-def _closed_cover(beh: _Behaviour, time_limit: float) -> tuple[list[int], bool]:
+def _closed_cover(beh: _AnyBehaviour, time_limit: float) -> tuple[list[int], bool]:
     """A minimum closed cover of the states by compatibles (exact unless out of time).
 
     Moore and Mealy machines alike: ``beh`` tabulates outputs per state and input class.
@@ -598,8 +645,7 @@ def _closed_cover(beh: _Behaviour, time_limit: float) -> tuple[list[int], bool]:
     try:
         primes = prime_compatibles(beh, adjacency, deadline)
     except _OutOfTime:
-        # The original states themselves always form a closed cover.
-        return [1 << s for s in range(n)], False
+        return _quick_closed_cover(beh, adjacency), False
     everyone = (1 << n) - 1
     best: list[list[int]] = [_greedy_cover(beh, primes, everyone)]
     by_state = [[i for i, (c, _g) in enumerate(primes) if c >> s & 1] for s in range(n)]
@@ -645,7 +691,39 @@ def _closed_cover(beh: _Behaviour, time_limit: float) -> tuple[list[int], bool]:
     return best[0], proven
 
 
-def _greedy_cover(beh: _Behaviour, primes: Sequence[tuple[int, frozenset[int]]],
+def _quick_closed_cover(beh: _AnyBehaviour, adjacency: Sequence[int]) -> list[int]:
+    """A closed cover found fast, for when the exact search has no time.
+
+    States are covered greedily by cliques of the compatibility graph grown from each
+    uncovered state (most compatible neighbours first); then every implied set that no
+    chosen class contains is added as a class of its own (an implied set of a compatible is
+    itself a compatible, by the implication chart), until the cover is closed.  Each
+    class is a compatible, so the result is valid; it is not minimal in general.
+    """
+    n = len(beh.states)
+    chosen: list[int] = []
+    covered = 0
+    for s in range(n):
+        if covered >> s & 1:
+            continue
+        clique = 1 << s
+        common = adjacency[s]
+        for v in sorted(bits_of(common), key=lambda v: (-(adjacency[v] & common).bit_count(), v)):
+            if common >> v & 1:
+                clique |= 1 << v
+                common &= adjacency[v]
+        chosen.append(clique)
+        covered |= clique
+    pending = list(chosen)
+    while pending:
+        for need in sorted(_implied(beh, pending.pop())):
+            if not any(need & ~c == 0 for c in chosen):
+                chosen.append(need)
+                pending.append(need)
+    return chosen
+
+
+def _greedy_cover(beh: _AnyBehaviour, primes: Sequence[tuple[int, frozenset[int]]],
                   everyone: int) -> list[int]:
     """A closed cover built greedily: the upper bound the exact search starts from."""
     chosen: list[int] = []
@@ -704,6 +782,218 @@ def _from_cover(table: StateTable, beh: _Behaviour, cover: list[int], proven: bo
     return StateMinimization(table=reduced, classes=FrozenMap(classes), proven=proven,
                              method="closed cover", unreachable=unreachable,
                              input_classes=len(beh.classes))
+
+
+# --- many inputs: each state on its own rows --------------------------------------------
+
+class _LocalBehaviour:
+    """The kept states of a table compared on their own rows (see :mod:`fsmsynth.regions`).
+
+    Gives what the closed-cover search needs (the compatibility graph and the class set of
+    a compatible) without input classes of the whole table: a pair of states is compared
+    on the intersections of its rows, and a compatible's next-state sets come from
+    intersecting its members' next-state regions.
+    """
+
+    def __init__(self, table: StateTable, states: tuple[str, ...],
+                 regions: Mapping[str, StateRegions]) -> None:
+        self.table = table
+        self.states = states
+        self.index = {s: i for i, s in enumerate(states)}
+        self.regions = [regions[s] for s in states]
+        self.rows = [[(Cube.from_string(c), -1 if nxt is None else self.index[nxt], out or "")
+                      for _s, c, nxt, out in table.rows_of(s)] for s in states]
+        self._implied: dict[int, frozenset[int]] = {}
+
+    def compatible_pairs(self) -> list[int]:
+        """As :func:`compatible_pairs`, pair by pair on intersecting rows."""
+        n = len(self.states)
+        moore = self.table.kind == "moore"
+        state_out = [self.table.output_cube_of(s) if moore else "" for s in self.states]
+        incompatible: set[tuple[int, int]] = set()
+        implied_by: dict[tuple[int, int], list[tuple[int, int]]] = {}
+        queue: deque[tuple[int, int]] = deque()
+        for p in range(n):
+            for q in range(p + 1, n):
+                clash = moore and _conflict(state_out[p], state_out[q])
+                implies: list[tuple[int, int]] = []
+                for cube_p, x, out_p in ([] if clash else self.rows[p]):
+                    for cube_q, y, out_q in self.rows[q]:
+                        if not cube_p.intersects(cube_q):
+                            continue
+                        if _conflict(out_p, out_q):
+                            clash = True
+                            break
+                        if x >= 0 and y >= 0 and x != y:
+                            implies.append((min(x, y), max(x, y)))
+                    if clash:
+                        break
+                if clash:
+                    incompatible.add((p, q))
+                    queue.append((p, q))
+                    continue
+                for pair in dict.fromkeys(implies):
+                    implied_by.setdefault(pair, []).append((p, q))
+        while queue:
+            pair = queue.popleft()
+            for parent in implied_by.get(pair, ()):
+                if parent not in incompatible:
+                    incompatible.add(parent)
+                    queue.append(parent)
+        adjacency = [0] * n
+        for p in range(n):
+            for q in range(p + 1, n):
+                if (p, q) not in incompatible:
+                    adjacency[p] |= 1 << q
+                    adjacency[q] |= 1 << p
+        return adjacency
+
+    def next_sets(self, members: int) -> dict[int, Any]:
+        """The input points, as BDDs, keyed by the set of next states the members go to there
+        (a bit mask; 0 where none of them has a next state)."""
+        regions = {0: bdd.ONE}
+        for s in bits_of(members):
+            state = self.regions[s]
+            split: dict[int, Any] = {}
+            for mask, points in regions.items():
+                rest = points & ~state.specified
+                if not rest.is_zero():
+                    split[mask] = split.get(mask, bdd.ZERO) | rest
+                for t, to in state.next:
+                    both = points & to
+                    if not both.is_zero():
+                        key = mask | 1 << self.index[t]
+                        split[key] = split.get(key, bdd.ZERO) | both
+            regions = split
+        return regions
+
+    def implied(self, members: int) -> frozenset[int]:
+        """As :func:`_implied`."""
+        if members not in self._implied:
+            self._implied[members] = frozenset(
+                m for m in self.next_sets(members) if m.bit_count() >= 2 and m & ~members)
+        return self._implied[members]
+
+
+def _minimize_local(table: StateTable, rows: _RowArrays, kept: np.ndarray,
+                    unreachable: tuple[str, ...], time_limit: float) -> StateMinimization:
+    """:func:`minimize_states` for tables whose rows distinguish many input classes."""
+    states = tuple(s for s, k in zip(table.states, kept.tolist()) if k)
+    regions = state_regions(table)
+    widest = max((len(table.rows_of(s)) for s in states), default=0)
+    if all(completely_specified(regions[s]) for s in states):
+        block = _refine_local(table, states, regions)
+        return replace(_from_partition(table, rows, states, kept, block, unreachable, widest,
+                                       "moore rounds"), input_partition="local")
+    beh = _LocalBehaviour(table, states, regions)
+    cover, proven = _closed_cover(beh, time_limit)
+    return _from_local_cover(table, beh, cover, proven, unreachable, widest)
+
+
+def _refine_local(table: StateTable, states: tuple[str, ...],
+                  regions: Mapping[str, StateRegions]) -> np.ndarray:
+    """State-equivalence classes of a completely specified machine, by Moore's rounds on
+    symbolic signatures: a state's signature is its output functions and, for each block,
+    the BDD of the inputs that lead into that block.  BDDs are canonical, so equal
+    signatures are equal objects.  Rounds until no block splits (at most n of them).
+
+    References
+    ----------
+    Moore, E. F., "Gedanken-experiments on sequential machines", *Automata Studies*,
+    Princeton, 1956.
+    """
+    index = {s: i for i, s in enumerate(states)}
+
+    def dense(keys: Sequence[object]) -> list[int]:
+        ids: dict[object, int] = {}
+        return [ids.setdefault(k, len(ids)) for k in keys]
+
+    block = dense([regions[s].out_on for s in states])
+    count = max(block, default=-1) + 1
+    while True:
+        signatures = []
+        for i, s in enumerate(states):
+            into: dict[int, Any] = {}
+            for t, points in regions[s].next:
+                b = block[index[t]]
+                into[b] = into.get(b, bdd.ZERO) | points
+            signatures.append((block[i], tuple(sorted(into.items(), key=lambda kv: kv[0]))))
+        new = dense(signatures)
+        new_count = max(new, default=-1) + 1
+        if new_count == count:
+            return np.array(block, dtype=np.int64)
+        block, count = new, new_count
+
+
+def _state_labels(beh: _LocalBehaviour, s: int) -> list[tuple[Any, int, str]]:
+    """State ``s``'s own input partition: (points, next state or -1, merged output cube)."""
+    table = beh.table
+    rows = beh.rows[s]
+    var = bdd.variables(len(table.inputs))
+    labels = []
+    for cls in partition(cube for cube, _n, _o in rows):
+        inside = [(nxt, out) for cube, nxt, out in rows if cube.contains(cls)]
+        nxt = next((x for x, _o in inside if x >= 0), -1)
+        out = _merge([o for _x, o in inside if o]) if table.kind == "mealy" else ""
+        labels.append((bdd.cube_bdd(cls, var), nxt, out))
+    return labels
+
+
+def _from_local_cover(table: StateTable, beh: _LocalBehaviour, cover: list[int], proven: bool,
+                      unreachable: tuple[str, ...], widest: int) -> StateMinimization:
+    """:func:`_from_cover` on local partitions: a reduced state's rows are the regions of its
+    members' combined behaviour, written as disjoint cubes."""
+    groups = [frozenset(bits_of(c)) for c in cover]
+    reset = beh.states.index(table.reset)
+    reset_group = next(g for g, members in enumerate(groups) if reset in members)
+    order = _ordered(table, beh, groups, reset_group)
+    names = _names(table, beh, groups, order)
+    var = bdd.variables(len(table.inputs))
+    n_in, blank = len(table.inputs), "-" * len(table.outputs)
+    labels = {s: _state_labels(beh, s) for g in groups for s in g}
+    rows: list[tuple[str, str, str | None, str | None]] = []
+    state_outputs: dict[str, str] = {}
+    for g in order:
+        members = sorted(groups[g])
+        if table.kind == "moore":
+            state_outputs[names[g]] = _merge([table.output_cube_of(beh.states[s])
+                                              for s in members])
+        regions: dict[tuple[int, str], Any] = {(0, blank if table.kind == "mealy" else ""):
+                                               bdd.ONE}
+        for s in members:
+            split: dict[tuple[int, str], Any] = {}
+            for (mask, out), points in regions.items():
+                for region, nxt, own in labels[s]:
+                    both = points & region
+                    if both.is_zero():
+                        continue
+                    key = (mask | (1 << nxt if nxt >= 0 else 0), _merge([out, own]) if own
+                           else out)
+                    split[key] = split.get(key, bdd.ZERO) | both
+            regions = split
+        by_row: dict[tuple[str | None, str | None], Any] = {}
+        for (mask, out), points in regions.items():
+            target = (names[next(h for h in order if mask & ~cover[h] == 0)] if mask
+                      else None)
+            cell = out if table.kind == "mealy" else None
+            if target is None and (cell is None or set(cell) <= {"-"}):
+                continue
+            by_row[(target, cell)] = by_row.get((target, cell), bdd.ZERO) | points
+        for (target, cell), points in sorted(by_row.items(), key=lambda kv: (
+                kv[0][0] or "", kv[0][1] or "")):
+            rows += [(names[g], cube.to_string(n_in), target, cell)
+                     for cube in bdd.cubes_of(points, var)]
+    reduced = StateTable.from_rows(
+        name=table.name, kind=table.kind, inputs=table.inputs, outputs=table.outputs, rows=rows,
+        reset=names[reset_group], states=[names[g] for g in order],
+        state_outputs=state_outputs if table.kind == "moore" else None)
+    classes = {names[g]: frozenset(beh.states[i] for i in groups[g]) for g in order}
+    return StateMinimization(table=reduced, classes=FrozenMap(classes), proven=proven,
+                             method="closed cover", unreachable=unreachable,
+                             input_classes=widest, input_partition="local")
+
+
+_AnyBehaviour = _Behaviour | _LocalBehaviour
 
 
 def _merge(cubes: Sequence[str]) -> str:

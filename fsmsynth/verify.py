@@ -4,10 +4,13 @@ The proof walks the product of table states and netlist state codes breadth firs
 reset state and the netlist's reset code, under every input combination.  Input
 combinations are grouped into classes that neither the table nor the netlist can tell
 apart (the cubes of the table's rows, split on every input the netlist reads), so the walk
-is exact without enumerating ``2**inputs`` points one by one.  Outputs must agree wherever
-the table specifies them; a don't-care next state is free, and the walk does not follow it.
-Exclusive pins (S and R of one flip-flop) are checked at every reachable point and, with
-binary decision diagrams, at every code and input whatsoever, unused codes included.
+is exact without enumerating ``2**inputs`` points one by one.  When those classes are too
+many (each state watching a few of many inputs), each product node is compared instead on
+BDDs over the inputs, against the state's own rows.  Outputs must agree wherever the table
+specifies them; a don't-care next state is free, and the walk does not follow it.
+Exclusive pins (S and R of one flip-flop) are checked at every reachable point and, by a
+SAT solver on the netlist's clauses, at every code and input whatsoever, unused codes
+included; so is the promise that unused codes go to reset.
 
 References
 ----------
@@ -15,22 +18,31 @@ Moore, E. F., "Gedanken-experiments on sequential machines", *Automata Studies*,
 1956 (equivalence of machines by exploring their product from the initial states).
 Bryant, R. E., "Graph-based algorithms for Boolean function manipulation", *IEEE Trans.
 Computers* C-35(8), 1986 (BDDs).
+Tseitin, G. S., "On the complexity of derivation in propositional calculus", *Studies in
+Constructive Mathematics and Mathematical Logic* 2, 1968 (clauses of a circuit).
 """
 
 from __future__ import annotations
 
 from collections import deque
 from collections.abc import Callable, Mapping, Sequence
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from functools import reduce
 from typing import Any
 
-from pyeda.boolalg.bdd import BDDONE, BDDZERO, bddvar
+from pyeda.boolalg import picosat
+from pyeda.boolalg.bdd import BDDONE
 
 from fsmsynth.errors import NetlistError, OptionError
-from fsmsynth.logic.cube import Cube, partition
-from fsmsynth.netlist import Netlist, checked_netlist
+from fsmsynth.logic import bdd
+from fsmsynth.logic.cube import Cube, partition_within
+from fsmsynth.netlist import FlipFlop, Netlist, checked_netlist
+from fsmsynth.regions import state_regions
 from fsmsynth.table import StateTable
+
+LOCAL_ABOVE = 256
+"""Above this many input classes (the table's rows split on every input the netlist reads),
+the product walk compares each node symbolically instead (see :func:`_walk_symbolic`)."""
 
 
 @dataclass(frozen=True, slots=True)
@@ -80,6 +92,9 @@ class Verification:
     input_classes: int
     counterexample: Counterexample | None = None
     safe_unused: bool | None = None
+    symbolic: bool = False
+    """Whether the walk compared each node on BDDs (many input classes) rather than over
+    input classes of the whole table; ``input_classes`` is then 0."""
 
     def __bool__(self) -> bool:
         return self.equivalent
@@ -87,8 +102,10 @@ class Verification:
     def summary(self) -> str:
         """A line for reports."""
         if self.equivalent:
+            inputs = ("inputs compared symbolically" if self.symbolic
+                      else f"{self.input_classes} input classes")
             text = (f"verified: netlist matches the table from reset "
-                    f"({self.product_states} product states, {self.input_classes} input classes)")
+                    f"({self.product_states} product states, {inputs})")
             if self.safe_unused:
                 text += "; every unused code goes to reset in one clock"
             return text
@@ -188,16 +205,18 @@ def _state_specs(table: StateTable, classes: Sequence[Cube], ones: int) -> dict[
     return specs
 
 
-def _input_classes(table: StateTable, netlist: Netlist) -> list[Cube]:
+def _input_classes(table: StateTable, netlist: Netlist) -> list[Cube] | None:
+    """Input classes neither the table nor the netlist tells apart; ``None`` past
+    :data:`LOCAL_ABOVE` of them."""
     read = netlist.nets_read()
     cubes = [Cube.from_string(r[1]) for r in table.rows]
     cubes += [Cube(care=1 << j, value=1 << j)
               for j, name in enumerate(table.inputs) if name in read]
-    return partition(cubes)
+    return partition_within(cubes, LOCAL_ABOVE)
 
 
-def verify(netlist: Any, table: Any = None, *, safe_unused: Sequence[int] | None = None
-           ) -> Verification:
+def verify(netlist: Any, table: Any = None, *,
+           safe_unused: Sequence[int] | Sequence[Cube] | None = None) -> Verification:
     """Prove that ``netlist`` realizes ``table`` from reset, or find the shortest counterexample.
 
     Parameters
@@ -209,8 +228,9 @@ def verify(netlist: Any, table: Any = None, *, safe_unused: Sequence[int] | None
     table:
         The specification.
     safe_unused:
-        Codes from which the netlist must reach its reset code in one clock under every
-        input (the ``unused="safe"`` promise); checked exactly.  For a design made with
+        Codes (ints, or cubes over the state bits for many codes at once) from which the
+        netlist must reach its reset code in one clock under every input (the
+        ``unused="safe"`` promise); checked exactly.  For a design made with
         ``unused="safe"`` its unused codes are checked by default.
 
     Returns
@@ -230,7 +250,7 @@ def verify(netlist: Any, table: Any = None, *, safe_unused: Sequence[int] | None
         design = netlist
         netlist, table = design.netlist, design.table
         if safe_unused is None and getattr(design, "unused", None) == "safe":
-            safe_unused = design.encoding.unused_codes()
+            safe_unused = design.encoding.unused_cubes()
     if isinstance(netlist, StateTable) and isinstance(table, Netlist):
         netlist, table = table, netlist
     if not isinstance(netlist, Netlist) or not isinstance(table, StateTable):
@@ -242,7 +262,10 @@ def verify(netlist: Any, table: Any = None, *, safe_unused: Sequence[int] | None
                            f"{netlist.inputs} / {ports} against {table.inputs} / "
                            f"{table.outputs}")
     netlist = checked_netlist(netlist)
-    classes = _input_classes(table, netlist)
+    found = _input_classes(table, netlist)
+    if found is None:
+        return _finish(netlist, safe_unused, _walk_symbolic(netlist, table))
+    classes = found
     ones = (1 << len(classes)) - 1
     input_vectors = {
         name: sum(1 << c for c, cube in enumerate(classes) if cube.value >> j & 1)
@@ -284,16 +307,95 @@ def verify(netlist: Any, table: Any = None, *, safe_unused: Sequence[int] | None
                 if target not in parent:
                     parent[target] = (node, _low_index(group))
                     queue.append(target)
+    return _finish(netlist, safe_unused, Verification(True, len(parent), len(classes)))
 
+
+def _finish(netlist: Netlist, safe_unused: Sequence[int] | Sequence[Cube],
+            walked: Verification) -> Verification:
+    """The walk's verdict, then the checks that do not depend on reachability."""
+    if not walked:
+        return walked
     failure_any = _exclusive_anywhere(netlist)
     if failure_any is not None:
-        return Verification(False, len(parent), len(classes), failure_any)
+        return replace(walked, equivalent=False, counterexample=failure_any)
     if safe_unused:
         unsafe = _unsafe_unused(netlist, safe_unused)
         if unsafe is not None:
-            return Verification(False, len(parent), len(classes), unsafe)
-    return Verification(True, len(parent), len(classes), None,
-                        safe_unused=True if safe_unused else None)
+            return replace(walked, equivalent=False, counterexample=unsafe)
+    return replace(walked, safe_unused=True if safe_unused else None)
+
+
+def _walk_symbolic(netlist: Netlist, table: StateTable) -> Verification:
+    """The product walk of :func:`verify` for tables whose rows distinguish many input
+    classes: each node (table state, netlist code) is checked on BDDs over the inputs.
+
+    At a node the netlist is evaluated on BDDs over the inputs with its state bits set to
+    the node's code (whole-netlist BDDs over state bits and inputs can grow exponentially,
+    one-hot logic over either variable order for one), and its outputs, next-state bits and
+    exclusive-pin clashes are compared with the state's own regions (:mod:`fsmsynth.regions`).
+    The points leading to one next state are split by the next code the netlist computes,
+    one successor per non-empty part, each with a witness input for counterexamples.
+    Breadth first, so a counterexample has the fewest clock cycles, as in the class-based
+    walk.
+    """
+    inputs = bdd.variables(len(netlist.inputs))
+    input_values = dict(zip(netlist.inputs, inputs))
+    regions = state_regions(table, inputs)
+    n_in = len(table.inputs)
+    start = (table.reset, netlist.reset_code)
+    parent: dict[tuple[str, int], tuple[tuple[str, int], str] | None] = {start: None}
+    queue = deque([start])
+
+    def word(points: Any) -> str:
+        bits = bdd.point_of(points, inputs)
+        return "".join(str(bits >> j & 1) for j in range(n_in))
+
+    def trace(node: tuple[str, int], last: str) -> tuple[tuple[str, ...], tuple[str, ...]]:
+        steps, states = [last], [node[0]]
+        link = parent[node]
+        while link is not None:
+            node, w = link
+            steps.append(w)
+            states.append(node[0])
+            link = parent[node]
+        return tuple(reversed(steps)), tuple(reversed(states))
+
+    def failed(node: tuple[str, int], points: Any, signal: str, expected: str,
+               actual: str) -> Verification:
+        words, states = trace(node, word(points))
+        return Verification(False, len(parent), 0,
+                            Counterexample(words, states, signal, expected, actual),
+                            symbolic=True)
+
+    while queue:
+        node = queue.popleft()
+        state, code = node
+        env, nexts, both = _step(netlist, code, input_values, BDDONE)
+        here = regions[state]
+        for o, (port, net) in enumerate(netlist.outputs):
+            y = env[net]
+            for bad, expected in ((y & here.out_off[o], "0"), (~y & here.out_on[o], "1")):
+                if not bad.is_zero():
+                    return failed(node, bad, port, expected, str(1 - int(expected)))
+        if not both.is_zero():
+            return failed(node, both, _exclusive_name(netlist), "not both 1", "both 1")
+        for nxt, points in here.next:
+            groups = [(points, 0)]
+            for b, vec in enumerate(nexts):
+                split = []
+                for group, next_code in groups:
+                    high, low = group & vec, group & ~vec
+                    if not high.is_zero():
+                        split.append((high, next_code | 1 << b))
+                    if not low.is_zero():
+                        split.append((low, next_code))
+                groups = split
+            for group, next_code in sorted(groups, key=lambda g: g[1]):
+                target = (nxt, next_code)
+                if target not in parent:
+                    parent[target] = (node, word(group))
+                    queue.append(target)
+    return Verification(True, len(parent), 0, symbolic=True)
 
 
 def _bits(cube: Cube, n: int) -> str:
@@ -332,56 +434,116 @@ def _split_by_code(mask: int, next_bits: Sequence[int]) -> list[tuple[int, int]]
     return sorted(groups, key=lambda g: _low_index(g[0]))
 
 
-def _symbolic(netlist: Netlist) -> tuple[dict[str, Any], list[Any]]:
-    """BDD variables for every state bit and input: nets and variable list."""
-    variables = [bddvar("fs_v", i) for i in range(netlist.width + len(netlist.inputs))]
-    values = {ff.q: variables[ff.bit] for ff in netlist.flip_flops}
-    values.update({name: variables[netlist.width + j] for j, name in enumerate(netlist.inputs)})
-    return values, variables
+class _Clauses:
+    """A netlist as clauses for a SAT solver (Tseitin 1968): one variable per net.
 
+    Questions about every code and input at once ("can S and R both be 1 anywhere?") are
+    answered by picosat (bundled with pyeda) on this encoding, whose size is the netlist's;
+    a BDD over every state bit and every input can instead grow exponentially (one-hot
+    logic, for one).  Variables ``1 .. width`` are the state bits, then the inputs.
+    """
 
-def _point(assignment: Mapping[Any, int], variables: Sequence[Any], netlist: Netlist) -> tuple[
-        int, str]:
-    code = sum(assignment.get(variables[b], 0) << b for b in range(netlist.width))
-    word = "".join(str(assignment.get(variables[netlist.width + j], 0))
-                   for j in range(len(netlist.inputs)))
-    return code, word
+    def __init__(self, netlist: Netlist) -> None:
+        self.netlist = netlist
+        self.count = netlist.width + len(netlist.inputs)
+        self.var = {ff.q: ff.bit + 1 for ff in netlist.flip_flops}
+        self.var.update({name: netlist.width + j + 1 for j, name in enumerate(netlist.inputs)})
+        self.clauses: list[tuple[int, ...]] = []
+        for g in netlist.gates:
+            ins = [self.var[i] for i in g.inputs]
+            self.var[g.output] = self._gate(g.kind, ins)
+
+    def fresh(self) -> int:
+        self.count += 1
+        return self.count
+
+    def conj(self, lits: Sequence[int]) -> int:
+        """A variable equal to the AND of ``lits`` (an empty AND is true)."""
+        out = self.fresh()
+        self.clauses += [(-out, lit) for lit in lits]
+        self.clauses.append((out, *(-lit for lit in lits)))
+        return out
+
+    def disj(self, lits: Sequence[int]) -> int:
+        """A variable equal to the OR of ``lits`` (an empty OR is false)."""
+        return -self.conj([-lit for lit in lits])
+
+    def _xor(self, a: int, b: int) -> int:
+        out = self.fresh()
+        self.clauses += [(-out, a, b), (-out, -a, -b), (out, -a, b), (out, a, -b)]
+        return out
+
+    def _gate(self, kind: str, ins: list[int]) -> int:
+        if kind in ("not", "buf"):
+            return -ins[0] if kind == "not" else ins[0]
+        if kind in ("const0", "const1"):
+            return self.conj([]) if kind == "const1" else -self.conj([])
+        if kind in ("and", "nand"):
+            out = self.conj(ins)
+        elif kind in ("or", "nor"):
+            out = self.disj(ins)
+        else:
+            out = ins[0]
+            for lit in ins[1:]:
+                out = self._xor(out, lit)
+        return -out if kind in ("nand", "nor", "xnor") else out
+
+    def next_state(self, ff: FlipFlop) -> int:
+        """A variable equal to the flip-flop's next state (its cell model, as simulated)."""
+        pins = {pin: self.var[net] for pin, net in ff.pins}
+        q = self.var[ff.q]
+        terms = []
+        for values, present, nxt in ff.storage.characteristic:
+            if ff.storage.forbidden_next if nxt is None else nxt:
+                lits = [q if present else -q]
+                lits += [pins[p] if v == "1" else -pins[p] for p, v in zip(ff.storage.pins, values)]
+                terms.append(self.conj(lits))
+        return self.disj(terms)
+
+    def solve(self, *units: int) -> tuple[int, str] | None:
+        """(code, input word) of a point where every literal of ``units`` holds, or None."""
+        found = picosat.satisfy_one(self.count, [*self.clauses, *((u,) for u in units)])
+        if found is None:
+            return None
+        true = {lit for lit in found if lit > 0}
+        netlist = self.netlist
+        code = sum(1 << b for b in range(netlist.width) if b + 1 in true)
+        word = "".join("1" if netlist.width + j + 1 in true else "0"
+                       for j in range(len(netlist.inputs)))
+        return code, word
 
 
 def _exclusive_anywhere(netlist: Netlist) -> Counterexample | None:
     """Exclusive pins both 1 at any code and input at all (unused codes included)."""
     if not any(ff.storage.exclusive for ff in netlist.flip_flops):
         return None
-    values, variables = _symbolic(netlist)
-    env = evaluate(netlist, values, BDDONE)
+    cnf = _Clauses(netlist)
     for ff in netlist.flip_flops:
         for a, b in ff.storage.exclusive:
-            both = env[ff.pin_net(a)] & env[ff.pin_net(b)]
-            if not both.is_zero():
-                code, word = _point(both.satisfy_one(), variables, netlist)
-                return Counterexample((word,), (), f"{a}{ff.bit}/{b}{ff.bit}", "not both 1",
-                                      "both 1", start_code=code)
+            found = cnf.solve(cnf.var[ff.pin_net(a)], cnf.var[ff.pin_net(b)])
+            if found is not None:
+                return Counterexample((found[1],), (), f"{a}{ff.bit}/{b}{ff.bit}",
+                                      "not both 1", "both 1", start_code=found[0])
     return None
 
 
-def _unsafe_unused(netlist: Netlist, codes: Sequence[int]) -> Counterexample | None:
+def _unsafe_unused(netlist: Netlist, codes: Sequence[int] | Sequence[Cube]
+                   ) -> Counterexample | None:
     """An unused code and input from which the next code is not the reset code."""
-    values, variables = _symbolic(netlist)
-    env = evaluate(netlist, values, BDDONE)
-    in_codes = BDDZERO
+    cnf = _Clauses(netlist)
+    terms = []
     for code in codes:
-        term = BDDONE
-        for b in range(netlist.width):
-            term &= variables[b] if code >> b & 1 else ~variables[b]
-        in_codes |= term
+        cube = code if isinstance(code, Cube) else Cube.minterm(code, netlist.width)
+        terms.append(cnf.conj([v + 1 if positive else -(v + 1)
+                               for v, positive in cube.literals()]))
+    unused = cnf.disj(terms)
     for ff in netlist.flip_flops:
-        pins = {pin: env[net] for pin, net in ff.pins}
-        nxt = ff.storage.next_state(env[ff.q], pins, BDDONE)
-        wrong = in_codes & (~nxt if ff.reset_value else nxt)
-        if not wrong.is_zero():
-            code, word = _point(wrong.satisfy_one(), variables, netlist)
-            return Counterexample((word,), (), f"Q{ff.bit} after one clock", str(ff.reset_value),
-                                  str(1 - ff.reset_value), start_code=code)
+        nxt = cnf.next_state(ff)
+        found = cnf.solve(unused, -nxt if ff.reset_value else nxt)
+        if found is not None:
+            return Counterexample((found[1],), (), f"Q{ff.bit} after one clock",
+                                  str(ff.reset_value), str(1 - ff.reset_value),
+                                  start_code=found[0])
     return None
 
 

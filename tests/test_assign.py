@@ -131,7 +131,8 @@ def test_rule_embeddings_are_distinct_local_optima_least_spread_first(table: Sta
 
 def test_width_too_small() -> None:
     table = read_table(EXAMPLES / "parcel_locker.toml")
-    with pytest.raises(OptionError, match=r"^width 1 is too small for 4 states$"):
+    with pytest.raises(OptionError, match=r"^width 1 is too small for 4 states: give a whole "
+                       r"number of at least 2 bits$"):
         synthesize(table, "d", "anneal", width=1)
 
 
@@ -194,3 +195,65 @@ def test_exhaustive_on_two_processes_finds_what_one_finds() -> None:
     assert two.assignment.evaluated == one.assignment.evaluated == 1120 + 1
     assert two.cost.total == one.cost.total
     assert two.verification.equivalent
+
+
+def _ring(n: int, inputs: int = 1) -> StateTable:
+    rows = []
+    for i in range(n):
+        for x in "01":
+            cube = x + "-" * (inputs - 1)
+            rows.append((f"s{i}", cube, f"s{(i * 3 + int(x)) % n}", str((i + int(x)) % 2)))
+    return StateTable.from_rows(name="ring", inputs=[f"x{j}" for j in range(inputs)],
+                                outputs=["y"], rows=rows, reset="s0")
+
+
+def test_exhaustive_refuses_a_search_it_cannot_finish() -> None:
+    from fsmsynth.assign import count_candidates
+
+    table = _ring(10, inputs=5)
+    # 16!/6! ordered assignments of 10 states to 4-bit codes, up to the 4! bit permutations,
+    # plus one-hot (counted directly: common practice, no source).
+    assert count_candidates(10, 4) == 29_059_430_400 // 24 + 1
+    with pytest.raises(OptionError) as info:
+        synthesize(table, "d", "exhaustive", minimize=False)
+    assert str(info.value) == (
+        "exhaustive search: 1,210,809,601 assignments of 10 states to 4-bit codes is more "
+        "than 20,000 (minutes to hours); use encoding 'anneal' or 'adjacency', or force it "
+        "(force=True, --force) with a time limit")
+
+
+def test_time_limit_stops_a_forced_search_on_two_workers_and_leaves_none() -> None:
+    import multiprocessing
+    import time
+
+    table = _ring(10)
+    started = time.monotonic()
+    design = synthesize(table, "d", "exhaustive", minimize=False, force=True, jobs=2,
+                        time_limit=1.5)
+    assert time.monotonic() - started < 15
+    a = design.assignment
+    assert a is not None and a.timed_out and not a.proven and a.evaluated > 0
+    assert design.verification and a.cost == design.cost.total
+    assert multiprocessing.active_children() == []
+
+
+def test_ctrl_c_stops_the_workers_at_once(tmp_path: Path) -> None:
+    import signal
+    import subprocess
+    import sys
+    import time
+
+    from fsmsynth.writers.spec_toml import write_spec
+
+    spec = tmp_path / "ring_ctrl_c.toml"
+    spec.write_text(write_spec(_ring(10)))
+    command = [sys.executable, "-m", "fsmsynth.cli", "build", str(spec), "--encoding",
+               "exhaustive", "--force", "--jobs", "2", "--no-minimize", "-o", str(tmp_path)]
+    run = subprocess.Popen(command, stdout=subprocess.PIPE, stderr=subprocess.PIPE, text=True)
+    time.sleep(4)
+    run.send_signal(signal.SIGINT)
+    out, err = run.communicate(timeout=60)
+    assert run.returncode == 0, err
+    assert "interrupted: best so far" in out and "verified" in out
+    left = subprocess.run(["ps", "-eo", "args"], capture_output=True, text=True).stdout
+    assert str(spec) not in left

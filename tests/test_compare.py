@@ -125,3 +125,16 @@ def test_exact_logic_in_synthesis_reports_proof(capsys: pytest.CaptureFixture[st
     assert auto.cover.method == "exact"
     main(["build", str(EXAMPLES / "parcel_locker.toml"), "--logic", "exact", "-o", str(tmp_path)])
     assert "two-level minimization: exact, proven minimal" in capsys.readouterr().out
+
+
+@settings(max_examples=10)
+@given(table=state_tables(max_states=6, max_inputs=3))
+def test_comparison_best_rows_are_what_synthesize_best_gives(table: StateTable) -> None:
+    # compare() derives "best" from the single-kind rows and one per-bit design instead of
+    # synthesizing every kind again: the rows must still be synthesize(storage="best").
+    result = compare(table, storages=["jk", "best"], encodings=["binary", "one-hot"])
+    for row in result.rows:
+        if row.storage == "best":
+            design = synthesize(table, "best", row.encoding)
+            assert row.total == design.cost.total
+            assert row.kinds == tuple(s.name for s in design.storages)

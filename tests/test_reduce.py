@@ -4,13 +4,15 @@ from __future__ import annotations
 
 import itertools
 import random
+from unittest.mock import patch
 
 import pytest
 from hypothesis import assume, given, settings
 from hypothesis import strategies as st
-from reference import brute_force_minimum_states, pair_compatible, realizes
+from reference import brute_force_minimum_states, pair_compatible, realizes, words
 from strategies import state_tables
 
+import fsmsynth.reduce as reduce_module
 from fsmsynth import StateTable
 from fsmsynth.check import reachable_states
 from fsmsynth.reduce import minimize_states
@@ -308,3 +310,19 @@ def test_large_copies_with_unreachable_states_reduce_back(table: StateTable, cop
     assert len(r.table.states) == len(minimal.states)
     assert set(r.unreachable) == set(blown.states) - set(reachable_states(blown))
     assert realizes(r.table, blown) and realizes(blown, r.table)
+
+
+@settings(max_examples=60)
+@given(table=state_tables(max_states=8, max_inputs=4))
+def test_local_input_partitions_give_the_same_reduction(table: StateTable) -> None:
+    """The many-input path (each state on its own rows) against whole-table input classes,
+    forced on small machines where both run: same classes, same proof, same behaviour."""
+    whole = minimize_states(table)
+    with patch.object(reduce_module, "LOCAL_ABOVE", 0):
+        local = minimize_states(table)
+    assert dict(local.classes) == dict(whole.classes)
+    assert (local.proven, local.unreachable) == (whole.proven, whole.unreachable)
+    assert local.table.states == whole.table.states
+    for state in whole.table.states:
+        for word in words(len(table.inputs)):
+            assert local.table.lookup(state, word) == whole.table.lookup(state, word)

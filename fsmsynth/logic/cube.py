@@ -137,7 +137,20 @@ def partition(cubes: Iterable[Cube]) -> list[Cube]:
     cube is the union of some of the returned ones.  Cost grows with the number of classes
     produced, never with the size of the space.
     """
+    classes = partition_within(cubes, None)
+    assert classes is not None
+    return classes
+
+
+def partition_within(cubes: Iterable[Cube], limit: int | None) -> list[Cube] | None:
+    """:func:`partition`, or ``None`` as soon as it would make more than ``limit`` classes.
+
+    Lets a stage choose between whole-table input classes (few of them) and each state's
+    own rows (when the common refinement grows towards ``2**inputs``) at a bounded cost.
+    """
     classes = [Cube.universe()]
+    if limit is not None and limit < 1:
+        return None
     for cube in dict.fromkeys(cubes):
         refined: list[Cube] = []
         for cls in classes:
@@ -148,8 +161,32 @@ def partition(cubes: Iterable[Cube]) -> list[Cube]:
             assert inside is not None
             refined.append(inside)
             refined.extend(sharp(cls, cube))
+            if limit is not None and len(refined) > limit:
+                return None
         classes = refined
     return sorted(classes, key=lambda c: (c.representative(), c.care))
+
+
+def complement_cubes(points: Iterable[int], n: int) -> list[Cube]:
+    """Disjoint cubes covering exactly the points of ``n`` variables not in ``points``.
+
+    Splits on one variable at a time (highest first), so the cost is O(len(points) * n) and
+    never ``2**n``: "every code no state has" costs as much as the codes the states have.
+    """
+    result: list[Cube] = []
+
+    def split(group: list[int], var: int, care: int, value: int) -> None:
+        if not group:
+            result.append(Cube(care=care, value=value))
+            return
+        if var < 0:
+            return  # the single point left is one of ``points``
+        bit = 1 << var
+        split([p for p in group if not p & bit], var - 1, care | bit, value)
+        split([p for p in group if p & bit], var - 1, care | bit, value | bit)
+
+    split(sorted(set(points)), n - 1, 0, 0)
+    return sorted(result)
 
 
 def bits_of(mask: int) -> Iterator[int]:
