@@ -8,6 +8,7 @@ import io
 import json
 import math
 import os
+import signal
 import sys
 from collections.abc import Sequence
 from pathlib import Path
@@ -17,7 +18,7 @@ from fsmsynth.compare import DEFAULT_ENCODINGS, DEFAULT_STORAGES, compare
 from fsmsynth.convert import convert_storage
 from fsmsynth.cost import DEFAULT_WEIGHTS, CostWeights
 from fsmsynth.errors import FsmSynthError, OptionError, VerificationError
-from fsmsynth.files import write_bytes_if_changed, write_if_changed
+from fsmsynth.files import write_all_if_changed, write_bytes_if_changed, write_if_changed
 from fsmsynth.formats import read_table
 from fsmsynth.formats.delays_toml import read_delays
 from fsmsynth.formats.weights_toml import read_weights
@@ -49,6 +50,8 @@ def _encoding_arg(text: str) -> str | dict[str, str]:
         state, sep, code = item.partition("=")
         if not sep or not state.strip() or not code.strip():
             raise OptionError(f"--encoding {text!r}: write state=code pairs separated by commas")
+        if state.strip() in mapping:
+            raise OptionError(f"--encoding {text!r}: state {state.strip()!r} is given two codes")
         mapping[state.strip()] = code.strip()
     return mapping
 
@@ -245,13 +248,13 @@ def _build(args: argparse.Namespace) -> int:
         files[out / f"{table.name}_tb.v"] = write_testbench(table)
     if args.check:
         stale = [str(p) for p, text in files.items()
-                 if not p.exists() or p.read_bytes() != text.encode("utf-8")]
+                 if not p.is_file() or p.read_bytes() != text.encode("utf-8")]
         for path in stale:
             print(f"stale: {path}")
         if not stale:
             print(f"up to date: {', '.join(str(p) for p in files)}")
         return 1 if stale else 0
-    written = {str(p): write_if_changed(p, text) for p, text in files.items()}
+    written = write_all_if_changed({str(p): text for p, text in files.items()})
     if args.json:
         report = _report(design)
         report["files"] = written
@@ -489,11 +492,25 @@ def main(argv: Sequence[str] | None = None) -> int:
     except FsmSynthError as exc:
         print(f"fsmsynth: error: {exc}", file=sys.stderr)
         return 1 if isinstance(exc, VerificationError) else 2
+    except KeyboardInterrupt:
+        print("fsmsynth: interrupted", file=sys.stderr)
+        return 130
     except BrokenPipeError:
         # The reader (``| head``) went away: stop quietly, as command-line tools do.
         sys.stdout = open(os.devnull, "w")  # noqa: SIM115
         return 0
 
 
-if __name__ == "__main__":
+def _terminate(signum: int, _frame: object) -> None:
+    """SIGTERM: unwind like Ctrl-C, so that no half-written output or temporary stays."""
+    raise SystemExit(128 + signum)
+
+
+def run() -> None:
+    """Entry point of the ``fsmsynth`` command."""
+    signal.signal(signal.SIGTERM, _terminate)
     sys.exit(main())
+
+
+if __name__ == "__main__":
+    run()

@@ -7,6 +7,7 @@ from concurrent.futures import Executor
 from dataclasses import dataclass, replace
 
 from fsmsynth.cost import DEFAULT_WEIGHTS, CostWeights
+from fsmsynth.errors import OptionError
 from fsmsynth.formats.spec_toml import parse_spec
 from fsmsynth.pipeline import synthesize
 from fsmsynth.storage import STORAGES
@@ -79,6 +80,8 @@ def compare(table: StateTable, storages: Sequence[str] = DEFAULT_STORAGES,
     weights, logic, minimize, unused:
         As for :func:`fsmsynth.synthesize`.
     """
+    if not storages or not encodings:
+        raise OptionError("compare: give at least one storage kind and one encoding")
     spec = write_spec(table)
     # "best" is the cheapest of every single kind and the per-bit choice: run each of those
     # once, shared with the single kinds asked for, instead of again inside synthesize().

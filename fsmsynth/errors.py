@@ -86,6 +86,21 @@ class NetlistError(FsmSynthError, ValueError):
         self.cell = cell
 
 
+class OutputError(FsmSynthError, OSError):
+    """An output file that cannot be written; the message is ``cannot write PATH: reason``.
+
+    ``path`` is the file at fault.  When it is raised, no output file was replaced.
+    """
+
+    def __init__(self, message: str, *, path: str) -> None:
+        super().__init__(message)
+        self.message = message
+        self.path = path
+
+    def __str__(self) -> str:
+        return self.message
+
+
 class VerificationError(FsmSynthError, RuntimeError):
     """A synthesized netlist that does not match its state table.
 

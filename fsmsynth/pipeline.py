@@ -206,8 +206,17 @@ def synthesize(table: StateTable, storage: StorageChoice = "d",
     >>> print(synthesize(t, "t").equations["T0"])
     T0 = Q1'
     """
+    if not isinstance(table, StateTable):
+        raise OptionError(f"synthesize() takes a StateTable (StateTable.from_rows, or "
+                          f"fsmsynth.formats.read_table), not {type(table).__name__}")
+    if not isinstance(weights, CostWeights):
+        raise OptionError(f"weights must be a CostWeights, not {weights!r}")
+    if isinstance(seed, bool) or not isinstance(seed, int):
+        raise OptionError(f"seed {seed!r}: give a whole number")
     if unused not in UNUSED_POLICIES:
         raise OptionError(f"unused codes {unused!r}: use one of {', '.join(UNUSED_POLICIES)}")
+    if clock_edge not in EDGES:
+        raise OptionError(f"clock edge {clock_edge!r}: use one of {', '.join(EDGES)}")
     reduction = minimize_states(table) if minimize else None
     work = reduction.table if reduction else table
     if reduction and isinstance(encoding, Mapping):
@@ -234,8 +243,6 @@ def synthesize(table: StateTable, storage: StorageChoice = "d",
         chosen = _build(table, reduction, work, codes, _per_bit(storage, codes.width), unused,
                         weights, logic)
     if clock_edge != "rising":
-        if clock_edge not in EDGES:
-            raise OptionError(f"clock edge {clock_edge!r}: use one of {', '.join(EDGES)}")
         chosen = replace(chosen, netlist=replace(chosen.netlist, flip_flops=tuple(
             replace(ff, edge=clock_edge) for ff in chosen.netlist.flip_flops)))
     if search is not None:

@@ -38,7 +38,7 @@ from fsmsynth.logic.cube import Cube, bits_of, partition, partition_within
 from fsmsynth.regions import StateRegions, completely_specified, state_regions
 from fsmsynth.table import StateTable
 
-LOCAL_ABOVE = 256
+LOCAL_ABOVE = 64
 """Above this many input classes of the whole table, reduction compares states on their own
 rows (:mod:`fsmsynth.regions`) instead of tabulating every state over every class."""
 
@@ -449,6 +449,10 @@ def _names(table: StateTable, beh: _AnyBehaviour, groups: Sequence[frozenset[int
     for g in order:
         members = sorted((beh.states[i] for i in groups[g]), key=rank.__getitem__)
         name = members[0] if members[0] not in used else "+".join(members)
+        # A joined name can be a user's state name too ("b+d"): number it apart.
+        base, k = name, 2
+        while name in used or (name in rank and name not in members):
+            name, k = f"{base}#{k}", k + 1
         names[g] = name
         used.add(name)
     return names

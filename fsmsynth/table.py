@@ -95,6 +95,11 @@ class StateTable:
         """
         if kind not in ("mealy", "moore"):
             raise TableError(f"kind {kind!r}: use 'mealy' or 'moore'")
+        for what, names in (("inputs", inputs), ("outputs", outputs)):
+            if isinstance(names, (str, bytes)) or not isinstance(names, Sequence):
+                raise TableError(f"{what} must be a list of names, not {names!r}")
+        if isinstance(rows, (str, bytes)) or not isinstance(rows, Iterable):
+            raise TableError(f"rows must be a list of rows, not {rows!r}")
         _check_names(name, inputs, outputs)
         inputs_t, outputs_t = tuple(inputs), tuple(outputs)
         rows_t = tuple(_check_row_shape(i, r, kind, len(inputs_t), len(outputs_t))
@@ -216,7 +221,7 @@ def _check_cube(text: object, width: int, what: str, where: str, row: int | None
 
 
 def _check_row_shape(i: int, row: Sequence[object], kind: str, n_in: int, n_out: int) -> Row:
-    if isinstance(row, (str, bytes)) or len(row) != 4:
+    if isinstance(row, (str, bytes)) or not isinstance(row, Sequence) or len(row) != 4:
         raise TableError(
             f"row {i + 1}: expected (state, input_cube, next_state, output_cube), got {row!r}",
             row=i,
@@ -225,6 +230,11 @@ def _check_row_shape(i: int, row: Sequence[object], kind: str, n_in: int, n_out:
     if not isinstance(state, str) or not state or state == "-":
         raise TableError(f"row {i + 1}: state {state!r} must be a non-empty name other than '-'",
                          row=i)
+    for name in (state, nxt):
+        if isinstance(name, str) and not name.isprintable():
+            raise TableError(f"row {i + 1}: state {name!r} contains a control character "
+                             "(a line break, tab, ...): state names are printable text",
+                             state=name, row=i)
     where = f"in row {i + 1} (state {state!r})"
     _check_cube(cube, n_in, "input cube", where, i, state)
     if nxt is not None and (not isinstance(nxt, str) or not nxt or nxt == "-"):
@@ -252,8 +262,9 @@ def _declared_states(states: Sequence[str] | None, rows: tuple[Row, ...]) -> tup
         return tuple(dict.fromkeys(r[0] for r in rows))
     result = tuple(states)
     for s in result:
-        if not isinstance(s, str) or not s or s == "-":
-            raise TableError(f"state {s!r} must be a non-empty name other than '-'")
+        if not isinstance(s, str) or not s or s == "-" or not s.isprintable():
+            raise TableError(f"state {s!r} must be a non-empty name of printable text other "
+                             "than '-'")
     seen: set[str] = set()
     for s in result:
         if s in seen:

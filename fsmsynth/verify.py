@@ -40,7 +40,7 @@ from fsmsynth.netlist import FlipFlop, Netlist, checked_netlist
 from fsmsynth.regions import state_regions
 from fsmsynth.table import StateTable
 
-LOCAL_ABOVE = 256
+LOCAL_ABOVE = 64
 """Above this many input classes (the table's rows split on every input the netlist reads),
 the product walk compares each node symbolically instead (see :func:`_walk_symbolic`)."""
 

@@ -33,17 +33,28 @@ def parse_csv(text: str, path: str = "<string>", *, default_name: str = "machine
     """Parse CSV text; see the module docstring for the layout."""
     settings: dict[str, str] = {"name": default_name, "kind": "mealy"}
     records: list[tuple[int, list[str]]] = []
-    for number, line in enumerate(text.splitlines(), start=1):
-        stripped = line.strip()
-        if not stripped:
-            continue
-        if stripped.startswith("#"):
-            match = _DIRECTIVE.match(stripped)
-            if match and not records:
-                settings[match.group(1)] = match.group(2)
-            continue
-        cells = next(csv.reader(io.StringIO(line)))
-        records.append((number, [c.strip() for c in cells]))
+    # Lines end at \n only (splitlines would also break at form feeds and U+2028, and the
+    # line numbers in errors would no longer be an editor's); fields may be long.
+    limit = csv.field_size_limit()
+    csv.field_size_limit(max(limit, len(text) + 1))
+    try:
+        for number, line in enumerate(text.removeprefix("\ufeff").split("\n"), start=1):
+            line = line.removesuffix("\r")
+            stripped = line.strip()
+            if not stripped:
+                continue
+            if stripped.startswith("#"):
+                match = _DIRECTIVE.match(stripped)
+                if match and not records:
+                    settings[match.group(1)] = match.group(2)
+                continue
+            try:
+                cells = next(csv.reader(io.StringIO(line)))
+            except csv.Error as exc:
+                raise SpecFileError(f"not a CSV line: {exc}", path=path, line=number) from None
+            records.append((number, [c.strip() for c in cells]))
+    finally:
+        csv.field_size_limit(limit)
     if not records:
         raise SpecFileError("no header row: expected state, inputs..., next, outputs...",
                             path=path)

@@ -97,7 +97,8 @@ class _Lines:
 
     def __init__(self, text: str) -> None:
         self.text = text
-        self.lines = text.splitlines()
+        # Lines end at \n only, as TOML says (splitlines also breaks at U+2028 and others).
+        self.lines = [line.removesuffix("\r") for line in text.split("\n")]
 
     def key(self, key: str, section: str | None = None) -> int | None:
         """Line of ``key = ...`` (bare or quoted), inside ``[section]`` when given."""
@@ -112,6 +113,13 @@ class _Lines:
                     return None
                 continue
             if inside and pattern.match(line):
+                return n
+        return None
+
+    def section(self, name: str) -> int | None:
+        """Line of the ``[name]`` header."""
+        for n, line in enumerate(self.lines, start=1):
+            if line.strip().replace(" ", "") == f"[{name}]":
                 return n
         return None
 
@@ -151,6 +159,12 @@ class _Lines:
         """Best line for a table error."""
         if exc.row is not None:
             return self.row(exc.row)
+        if exc.message.startswith("kind "):
+            return self.key("kind")
+        if exc.message.startswith("state_outputs"):
+            return self.section("state_outputs") or self.key("state_outputs")
+        if exc.message.endswith("in states") or "must be a non-empty name" in exc.message:
+            return self.key("states")
         if exc.name is not None:
             for key in ("inputs", "outputs", "name"):
                 value = data.get(key)

@@ -14,7 +14,7 @@ def read_text(path: str | Path) -> str:
     """The UTF-8 text of ``path``; a missing, unreadable or non-UTF-8 file is a SpecFileError."""
     p = Path(path)
     try:
-        return p.read_text(encoding="utf-8")
+        return p.read_text(encoding="utf-8").removeprefix("\ufeff")
     except OSError as exc:
         raise SpecFileError(f"cannot read the file: {exc.strerror}", path=str(p)) from None
     except UnicodeDecodeError:

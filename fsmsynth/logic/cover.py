@@ -22,6 +22,8 @@ from fsmsynth.logic.exact import exact_cover, points_of
 METHODS = ("heuristic", "exact", "auto")
 EXACT_AUTO_LIMIT = 10
 """``logic="auto"`` runs the exact minimizer up to this many variables, Espresso beyond."""
+EXACT_MAX_VARIABLES = 16
+"""``logic="exact"`` works on the ``2**n`` points of its variables: at most this many."""
 
 
 @dataclass(frozen=True, slots=True)
@@ -211,6 +213,11 @@ def minimize_logic(functions: LogicFunctions, weights: CostWeights = DEFAULT_WEI
     n = len(functions.variables)
     if method == "auto":
         method = "exact" if n <= EXACT_AUTO_LIMIT else "heuristic"
+    if method == "exact" and n > EXACT_MAX_VARIABLES:
+        raise OptionError(
+            f"exact two-level minimization over {n} variables (state bits and inputs): it "
+            f"enumerates 2**{n} points, and works up to {EXACT_MAX_VARIABLES}; use logic "
+            "'heuristic' or 'auto'")
     engine = _Engine(method, n, time_limit)
     fs: tuple[Function, ...] = functions.functions
     joint = [normal_terms(t) for t in engine([f.on for f in fs], [f.off for f in fs])]

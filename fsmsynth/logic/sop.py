@@ -6,15 +6,19 @@ significant bit (with three variables a, b, c, minterm 6 is a = 1, b = 1, c = 0)
 
 from __future__ import annotations
 
+import math
 from collections.abc import Sequence
 from dataclasses import dataclass
 
 import sympy
 
 from fsmsynth.errors import OptionError
+from fsmsynth.logic.cover import EXACT_MAX_VARIABLES
 from fsmsynth.logic.exact import exact_cover, heuristic_cover, petrick_cover
 
 METHODS = ("exact", "heuristic", "petrick")
+SOP_MAX_VARIABLES = 20
+"""Functions given by minterm numbers take at most this many variables (``2**n`` points)."""
 
 
 @dataclass(frozen=True, slots=True)
@@ -112,6 +116,17 @@ def minimize_sop(n_inputs: int, on: Sequence[int] | Sequence[Sequence[int]],
     """
     if method not in METHODS:
         raise OptionError(f"unknown method {method!r}: use one of {', '.join(METHODS)}")
+    most = EXACT_MAX_VARIABLES if method != "heuristic" else SOP_MAX_VARIABLES
+    if isinstance(n_inputs, bool) or not isinstance(n_inputs, int) or not 1 <= n_inputs <= most:
+        raise OptionError(f"n_inputs {n_inputs!r}: give a whole number from 1 to {most} for "
+                          f"method {method!r} (the function is given by its 2**n minterms)")
+    for name, value in (("on", on), ("dc", dc)):
+        if isinstance(value, (str, bytes)) or not isinstance(value, Sequence):
+            raise OptionError(f"{name} must be a list of minterm numbers (or one list per "
+                              f"output), not {value!r}")
+    if not isinstance(time_limit, (int, float)) or not math.isfinite(time_limit) \
+            or time_limit <= 0:
+        raise OptionError(f"time limit {time_limit!r}: give a finite number of seconds > 0")
     multi = bool(on) and not isinstance(on[0], int)
     on_lists: list[list[int]] = [list(x) for x in on] if multi else [list(on)]  # type: ignore[arg-type]
     dc_lists: list[list[int]]
