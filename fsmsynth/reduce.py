@@ -525,17 +525,24 @@ def compatible_pairs(beh: _AnyBehaviour) -> list[int]:
     n, k = len(beh.states), len(beh.classes)
     incompatible: set[tuple[int, int]] = set()
     implied_by: dict[tuple[int, int], list[tuple[int, int]]] = {}
-    queue: deque[tuple[int, int]] = deque()
     for p in range(n):
         for q in range(p + 1, n):
             if any(_conflict(beh.outputs[p][a], beh.outputs[q][a]) for a in range(k)):
                 incompatible.add((p, q))
-                queue.append((p, q))
                 continue
             for a in range(k):
                 x, y = beh.next[p][a], beh.next[q][a]
                 if x >= 0 and y >= 0 and x != y:
                     implied_by.setdefault((min(x, y), max(x, y)), []).append((p, q))
+    return _compatibility_graph(n, incompatible, implied_by)
+
+
+def _compatibility_graph(n: int, incompatible: set[tuple[int, int]],
+                         implied_by: Mapping[tuple[int, int], Sequence[tuple[int, int]]]
+                         ) -> list[int]:
+    """Adjacency masks once incompatibility is propagated backwards from the pairs marked
+    directly through the pairs that imply them (the implication chart's marking)."""
+    queue = deque(sorted(incompatible))
     while queue:
         pair = queue.popleft()
         for parent in implied_by.get(pair, ()):
@@ -816,7 +823,6 @@ class _LocalBehaviour:
         state_out = [self.table.output_cube_of(s) if moore else "" for s in self.states]
         incompatible: set[tuple[int, int]] = set()
         implied_by: dict[tuple[int, int], list[tuple[int, int]]] = {}
-        queue: deque[tuple[int, int]] = deque()
         for p in range(n):
             for q in range(p + 1, n):
                 clash = moore and _conflict(state_out[p], state_out[q])
@@ -834,23 +840,10 @@ class _LocalBehaviour:
                         break
                 if clash:
                     incompatible.add((p, q))
-                    queue.append((p, q))
                     continue
                 for pair in dict.fromkeys(implies):
                     implied_by.setdefault(pair, []).append((p, q))
-        while queue:
-            pair = queue.popleft()
-            for parent in implied_by.get(pair, ()):
-                if parent not in incompatible:
-                    incompatible.add(parent)
-                    queue.append(parent)
-        adjacency = [0] * n
-        for p in range(n):
-            for q in range(p + 1, n):
-                if (p, q) not in incompatible:
-                    adjacency[p] |= 1 << q
-                    adjacency[q] |= 1 << p
-        return adjacency
+        return _compatibility_graph(n, incompatible, implied_by)
 
     def next_sets(self, members: int) -> dict[int, Any]:
         """The input points, as BDDs, keyed by the set of next states the members go to there

@@ -28,7 +28,7 @@ from collections import deque
 from collections.abc import Callable, Mapping, Sequence
 from dataclasses import dataclass, replace
 from functools import reduce
-from typing import Any
+from typing import Any, TypeVar
 
 from pyeda.boolalg import picosat
 from pyeda.boolalg.bdd import BDDONE
@@ -277,16 +277,8 @@ def verify(netlist: Any, table: Any = None, *,
     queue = deque([start])
 
     def trace(node: tuple[str, int], last_class: int) -> tuple[tuple[str, ...], tuple[str, ...]]:
-        steps = [last_class]
-        states = [node[0]]
-        link = parent[node]
-        while link is not None:
-            node, cls = link
-            steps.append(cls)
-            states.append(node[0])
-            link = parent[node]
-        words = tuple(_bits(classes[c], len(table.inputs)) for c in reversed(steps))
-        return words, tuple(reversed(states))
+        steps, states = _path(parent, node, last_class)
+        return tuple(_bits(classes[c], len(table.inputs)) for c in steps), states
 
     while queue:
         node = queue.popleft()
@@ -308,6 +300,23 @@ def verify(netlist: Any, table: Any = None, *,
                     parent[target] = (node, _low_index(group))
                     queue.append(target)
     return _finish(netlist, safe_unused, Verification(True, len(parent), len(classes)))
+
+
+_Step = TypeVar("_Step")
+
+
+def _path(parent: Mapping[tuple[str, int], tuple[tuple[str, int], _Step] | None],
+          node: tuple[str, int], last: _Step) -> tuple[tuple[_Step, ...], tuple[str, ...]]:
+    """The steps (input classes or words) and table states from reset to ``node``, then
+    ``last``: the breadth-first tree read backwards."""
+    steps, states = [last], [node[0]]
+    link = parent[node]
+    while link is not None:
+        node, step = link
+        steps.append(step)
+        states.append(node[0])
+        link = parent[node]
+    return tuple(reversed(steps)), tuple(reversed(states))
 
 
 def _finish(netlist: Netlist, safe_unused: Sequence[int] | Sequence[Cube],
@@ -351,14 +360,7 @@ def _walk_symbolic(netlist: Netlist, table: StateTable) -> Verification:
         return "".join(str(bits >> j & 1) for j in range(n_in))
 
     def trace(node: tuple[str, int], last: str) -> tuple[tuple[str, ...], tuple[str, ...]]:
-        steps, states = [last], [node[0]]
-        link = parent[node]
-        while link is not None:
-            node, w = link
-            steps.append(w)
-            states.append(node[0])
-            link = parent[node]
-        return tuple(reversed(steps)), tuple(reversed(states))
+        return _path(parent, node, last)
 
     def failed(node: tuple[str, int], points: Any, signal: str, expected: str,
                actual: str) -> Verification:
