@@ -36,7 +36,7 @@ from fsmsynth.frozen import FrozenMap
 from fsmsynth.logic import bdd
 from fsmsynth.logic.cube import Cube, bits_of, partition, partition_within
 from fsmsynth.regions import StateRegions, completely_specified, state_regions
-from fsmsynth.table import StateTable
+from fsmsynth.table import Row, StateTable
 
 LOCAL_ABOVE = 64
 """Above this many input classes of the whole table, reduction compares states on their own
@@ -758,11 +758,7 @@ def _greedy_cover(beh: _AnyBehaviour, primes: Sequence[tuple[int, frozenset[int]
 def _from_cover(table: StateTable, beh: _Behaviour, cover: list[int], proven: bool,
                 unreachable: tuple[str, ...]) -> StateMinimization:
     """The reduced table of a closed cover: one state per compatible."""
-    groups = [frozenset(bits_of(c)) for c in cover]
-    reset = beh.states.index(table.reset)
-    reset_group = next(g for g, members in enumerate(groups) if reset in members)
-    order = _ordered(table, beh, groups, reset_group)
-    names = _names(table, beh, groups, order)
+    groups, order, names = _cover_states(table, beh, cover)
     rows = []
     state_outputs: dict[str, str] = {}
     n_in = len(table.inputs)
@@ -785,14 +781,8 @@ def _from_cover(table: StateTable, beh: _Behaviour, cover: list[int], proven: bo
             if target is None and (out_cell is None or set(out_cell) <= {"-"}):
                 continue
             rows.append((names[g], cls.to_string(n_in), target, out_cell))
-    reduced = StateTable.from_rows(
-        name=table.name, kind=table.kind, inputs=table.inputs, outputs=table.outputs, rows=rows,
-        reset=names[reset_group], states=[names[g] for g in order],
-        state_outputs=state_outputs if table.kind == "moore" else None)
-    classes = {names[g]: frozenset(beh.states[i] for i in groups[g]) for g in order}
-    return StateMinimization(table=reduced, classes=FrozenMap(classes), proven=proven,
-                             method="closed cover", unreachable=unreachable,
-                             input_classes=len(beh.classes))
+    return _cover_minimization(table, beh, groups, order, names, rows, state_outputs, proven,
+                               unreachable, len(beh.classes), "whole table")
 
 
 # --- many inputs: each state on its own rows --------------------------------------------
@@ -940,11 +930,7 @@ def _from_local_cover(table: StateTable, beh: _LocalBehaviour, cover: list[int],
                       unreachable: tuple[str, ...], widest: int) -> StateMinimization:
     """:func:`_from_cover` on local partitions: a reduced state's rows are the regions of its
     members' combined behaviour, written as disjoint cubes."""
-    groups = [frozenset(bits_of(c)) for c in cover]
-    reset = beh.states.index(table.reset)
-    reset_group = next(g for g, members in enumerate(groups) if reset in members)
-    order = _ordered(table, beh, groups, reset_group)
-    names = _names(table, beh, groups, order)
+    groups, order, names = _cover_states(table, beh, cover)
     var = bdd.variables(len(table.inputs))
     n_in, blank = len(table.inputs), "-" * len(table.outputs)
     labels = {s: _state_labels(beh, s) for g in groups for s in g}
@@ -980,17 +966,39 @@ def _from_local_cover(table: StateTable, beh: _LocalBehaviour, cover: list[int],
                 kv[0][0] or "", kv[0][1] or "")):
             rows += [(names[g], cube.to_string(n_in), target, cell)
                      for cube in bdd.cubes_of(points, var)]
+    return _cover_minimization(table, beh, groups, order, names, rows, state_outputs, proven,
+                               unreachable, widest, "local")
+
+
+_AnyBehaviour = _Behaviour | _LocalBehaviour
+
+
+def _cover_states(table: StateTable, beh: _AnyBehaviour, cover: Sequence[int]) -> tuple[
+        list[frozenset[int]], list[int], dict[int, str]]:
+    """The compatibles of a closed cover as member sets, their order (the reset's first)
+    and their names."""
+    groups = [frozenset(bits_of(c)) for c in cover]
+    reset = beh.states.index(table.reset)
+    reset_group = next(g for g, members in enumerate(groups) if reset in members)
+    order = _ordered(table, beh, groups, reset_group)
+    return groups, order, _names(table, beh, groups, order)
+
+
+def _cover_minimization(table: StateTable, beh: _AnyBehaviour,
+                        groups: Sequence[frozenset[int]], order: Sequence[int],
+                        names: Mapping[int, str], rows: Sequence[Row],
+                        state_outputs: Mapping[str, str], proven: bool,
+                        unreachable: tuple[str, ...], input_classes: int,
+                        input_partition: str) -> StateMinimization:
+    """The reduced table of a closed cover, from its rows, and what produced it."""
     reduced = StateTable.from_rows(
         name=table.name, kind=table.kind, inputs=table.inputs, outputs=table.outputs, rows=rows,
-        reset=names[reset_group], states=[names[g] for g in order],
+        reset=names[order[0]], states=[names[g] for g in order],
         state_outputs=state_outputs if table.kind == "moore" else None)
     classes = {names[g]: frozenset(beh.states[i] for i in groups[g]) for g in order}
     return StateMinimization(table=reduced, classes=FrozenMap(classes), proven=proven,
                              method="closed cover", unreachable=unreachable,
-                             input_classes=widest, input_partition="local")
-
-
-_AnyBehaviour = _Behaviour | _LocalBehaviour
+                             input_classes=input_classes, input_partition=input_partition)
 
 
 def _merge(cubes: Sequence[str]) -> str:

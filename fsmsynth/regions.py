@@ -1,11 +1,10 @@
 """Each state's rows as sets of input points (BDDs): local input partitions.
 
 A controller whose states each watch a few of many inputs has rows whose common refinement
-grows towards ``2**inputs`` classes.  The stages that compare states (reduction, the
-assignment rules) or walk a machine (verification) then work on one state, or one pair of
-states, at a time: the points where a state goes to each next state and where each output
-is 1 or 0 are BDDs over the inputs, and two states are compared by intersecting their rows.
-The common refinement is never built.
+grows towards ``2**inputs`` classes.  State reduction and verification then work on one
+state, or one pair of states, at a time: the points where a state goes to each next state
+and where each output is 1 or 0 are BDDs over the inputs, and two states are compared by
+intersecting their rows.  The common refinement is never built.
 """
 
 from __future__ import annotations

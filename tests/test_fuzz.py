@@ -81,7 +81,8 @@ def run(argv: list[str], capsys: pytest.CaptureFixture[str]) -> tuple[int, str]:
 
 @FUZZ
 @given(case=mutated(), command=st.sampled_from(["check", "build", "reduce"]))
-def test_mutated_specs(case: tuple[str, bytes], command: str, tmp_path_factory: pytest.TempPathFactory,
+def test_mutated_specs(case: tuple[str, bytes], command: str,
+                       tmp_path_factory: pytest.TempPathFactory,
                        capsys: pytest.CaptureFixture[str]) -> None:
     folder = tmp_path_factory.mktemp("fuzz")
     spec = folder / f"spec{case[0]}"

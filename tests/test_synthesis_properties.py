@@ -14,7 +14,7 @@ from strategies import state_tables
 
 from fsmsynth import STORAGES, StateTable, synthesize, verify
 from fsmsynth.netlist import Gate, Netlist
-from fsmsynth.verify import evaluate
+from fsmsynth.verify import Counterexample, evaluate
 
 ENCODINGS = ["binary", "gray", "one-hot"]
 
@@ -100,11 +100,15 @@ def test_changed_gate_is_judged_exactly_and_counterexample_replays(
     assert cex is not None
     if cex.start_code is not None or "/" in cex.signal:
         return  # an exclusive-pin clash, checked by the SR test above
-    # Replay: the netlist really shows `actual` and the table really asks for `expected`.
-    code = broken.reset_code
+    assert_replays(broken, table, cex)
+
+
+def assert_replays(netlist: Netlist, table: StateTable, cex: Counterexample) -> None:
+    """The netlist really shows ``actual`` and the table really asks for ``expected``."""
+    code = netlist.reset_code
     for word in cex.inputs[:-1]:
-        code, _outs = step(broken, code, word)
-    _next, outs = step(broken, code, cex.inputs[-1])
+        code, _outs = step(netlist, code, word)
+    _next, outs = step(netlist, code, cex.inputs[-1])
     state, want = table_walk(table, cex.inputs)
     o = table.outputs.index(cex.signal)
     assert outs[o] == cex.actual and want[o] == cex.expected
@@ -192,10 +196,4 @@ def test_symbolic_walk_agrees_with_the_class_walk(table: StateTable, storage: st
     assert len(a.inputs) == len(b.inputs) and a.start_code == b.start_code
     if a.start_code is not None or "/" in a.signal:
         return
-    code = netlist.reset_code
-    for word in a.inputs[:-1]:
-        code, _outs = step(netlist, code, word)
-    _next, outs = step(netlist, code, a.inputs[-1])
-    state, want = table_walk(table, a.inputs)
-    o = table.outputs.index(a.signal)
-    assert outs[o] == a.actual and want[o] == a.expected and state == a.states[-1]
+    assert_replays(netlist, table, a)
