@@ -52,8 +52,10 @@ from fsmsynth.encode import Encoding, encode
 from fsmsynth.errors import OptionError
 from fsmsynth.excite import excite
 from fsmsynth.frozen import FrozenMap
+from fsmsynth.logic import bdd
 from fsmsynth.logic.cover import minimize_logic
-from fsmsynth.logic.cube import Cube, partition
+from fsmsynth.logic.cube import Cube, partition_within
+from fsmsynth.regions import state_regions
 from fsmsynth.storage import Storage
 from fsmsynth.table import StateTable
 
@@ -154,10 +156,22 @@ def exhaustive_assignments(n: int, k: int) -> Iterator[tuple[int, ...]]:
             yield codes
 
 
+WEIGHTS_BY_CLASS_UP_TO = 64
+"""Up to this many whole-table input classes, the rules are counted per class; past it, per
+pair of states on their own rows (see :func:`adjacency_weights`)."""
+
+
 def adjacency_weights(table: StateTable) -> dict[tuple[int, int], int]:
-    """Pair weights from the three assignment rules (see the module docstring)."""
+    """Pair weights from the three assignment rules (see the module docstring).
+
+    Rules (1) and (3) count, for a pair of states, the input classes on which both go to one
+    next state (weight 4) or give one fully specified output word (weight 1).  With at most
+    :data:`WEIGHTS_BY_CLASS_UP_TO` whole-table input classes they are counted per class;
+    past it the whole-table refinement is not built: each pair of states counts, per shared
+    next state or output word, one coincidence where their own rows overlap (BDDs), so the
+    cost grows with states and rows, not with ``2**inputs``.
+    """
     index = {s: i for i, s in enumerate(table.states)}
-    classes = partition(Cube.from_string(r[1]) for r in table.rows)
     weights: dict[tuple[int, int], int] = {}
 
     def add(a: int, b: int, w: int) -> None:
@@ -165,9 +179,24 @@ def adjacency_weights(table: StateTable) -> dict[tuple[int, int], int]:
             key = (min(a, b), max(a, b))
             weights[key] = weights.get(key, 0) + w
 
-    bits = "".join
+    classes = partition_within((Cube.from_string(r[1]) for r in table.rows),
+                               WEIGHTS_BY_CLASS_UP_TO)
+    if classes is None:
+        _local_weights(table, add)
+    else:
+        _class_weights(table, classes, index, add)
+    for s in table.states:
+        targets = sorted({index[r[2]] for r in table.rows_of(s) if r[2] is not None})
+        for a, b in itertools.combinations(targets, 2):
+            add(a, b, 2)
+    return weights
+
+
+def _class_weights(table: StateTable, classes: Sequence[Cube], index: dict[str, int],
+                   add: Callable[[int, int, int], None]) -> None:
+    """Rules (1) and (3) counted per whole-table input class."""
     for cls in classes:
-        word = bits("1" if cls.value >> j & 1 else "0" for j in range(len(table.inputs)))
+        word = "".join("1" if cls.value >> j & 1 else "0" for j in range(len(table.inputs)))
         by_next: dict[str, list[int]] = {}
         by_out: dict[str, list[int]] = {}
         for s in table.states:
@@ -182,11 +211,34 @@ def adjacency_weights(table: StateTable) -> dict[tuple[int, int], int]:
         for group in by_out.values():
             for a, b in itertools.combinations(group, 2):
                 add(a, b, 1)
+
+
+def _local_weights(table: StateTable, add: Callable[[int, int, int], None]) -> None:
+    """Rules (1) and (3) on each pair of states' own rows: one count per next state both
+    reach on a common input point, and per output word both give on one."""
+    regions = state_regions(table)
+    words: list[dict[str, object]] = []
     for s in table.states:
-        targets = sorted({index[r[2]] for r in table.rows_of(s) if r[2] is not None})
-        for a, b in itertools.combinations(targets, 2):
-            add(a, b, 2)
-    return weights
+        by_word: dict[str, object] = {}
+        if table.kind == "moore":
+            cube = table.output_cube_of(s)
+            if "-" not in cube:
+                by_word[cube] = bdd.ONE
+        else:
+            for points, _nxt, out in regions[s].rows:
+                if out and "-" not in out:
+                    by_word[out] = by_word.get(out, bdd.ZERO) | points
+        words.append(by_word)
+    reaches = [dict(regions[s].next) for s in table.states]
+    for a, b in itertools.combinations(range(len(table.states)), 2):
+        for nxt, points in reaches[a].items():
+            other = reaches[b].get(nxt)
+            if other is not None and not (points & other).is_zero():
+                add(a, b, 4)
+        for word, points in words[a].items():
+            other = words[b].get(word)
+            if other is not None and not (points & other).is_zero():  # type: ignore[operator]
+                add(a, b, 1)
 
 
 RULE_SCORES = 64

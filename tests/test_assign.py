@@ -109,6 +109,25 @@ def test_adjacency_picks_the_cheapest_polarity_of_the_rule_embeddings() -> None:
     assert wide.encoding.width == 3 and wide.verification
 
 
+@settings(max_examples=40, deadline=None)
+@given(table=state_tables(min_states=2, max_states=7, max_inputs=3))
+def test_local_weights_link_the_pairs_the_per_class_count_links(table: StateTable) -> None:
+    # The two ways of counting rules (1) and (3) must agree on which pairs of states share a
+    # next state or a fully specified output word on some input point (rules from the module
+    # docstring; the per-class count is the original method, the local one is its scaled form).
+    import fsmsynth.assign as assign
+    by_class = adjacency_weights(table)
+    saved = assign.WEIGHTS_BY_CLASS_UP_TO
+    assign.WEIGHTS_BY_CLASS_UP_TO = 0
+    try:
+        local = adjacency_weights(table)
+    finally:
+        assign.WEIGHTS_BY_CLASS_UP_TO = saved
+    assert set(local) == set(by_class)
+    for pair, w in local.items():
+        assert w <= by_class[pair]  # one count per shared target, not per class
+
+
 @settings(max_examples=25, deadline=None)
 @given(table=state_tables(min_states=2, max_states=9, max_inputs=2), extra=st.integers(0, 1))
 def test_rule_embeddings_are_distinct_local_optima_least_spread_first(table: StateTable,
