@@ -140,6 +140,63 @@ class StateTable:
         )
 
     @classmethod
+    def from_transitions(
+        cls,
+        *,
+        name: str,
+        reset: str,
+        inputs: Sequence[str] | Mapping[str, int],
+        outputs: Sequence[str] | Mapping[str, int],
+        transitions: Sequence[Sequence[object]],
+        kind: str = "mealy",
+        default_outputs: Mapping[str, object] | None = None,
+        otherwise: str = "dont-care",
+        state_outputs: Mapping[str, Mapping[str, object]] | None = None,
+        invariants: Sequence[str] | None = None,
+    ) -> StateTable:
+        """Build a table from guarded transitions, the way designers write a controller.
+
+        ``transitions`` are ``(from, guard, to, outputs)``: ``guard`` is an expression over
+        the inputs (see :mod:`fsmsynth.guards`) or ``"else"``; ``outputs`` a dict of output
+        -> value (an int, or a bit string of ``0``, ``1`` and ``-``), merged over
+        ``default_outputs`` (an output given nowhere is don't care); Moore machines give
+        ``None`` there and their outputs in ``state_outputs={state: {output: value}}``.
+        A state's transitions are tried in the order written, after those whose ``from`` is
+        ``"*"``; the first whose guard holds fires.  Input combinations no guard covers are
+        unspecified (``otherwise="dont-care"``) or stay in the state with the default
+        outputs (``otherwise="stay"``).  States are declared in order of first mention.
+
+        The rows of the result are the compiled cubes (disjoint, from BDDs); everything else
+        is as :meth:`from_rows` builds it.  Inputs and outputs are 1 bit wide for now (a
+        dict gives widths; a width above 1 is refused), and ``invariants`` are refused.
+
+        Raises
+        ------
+        TableError
+            Naming the transition (1-based position), its state and the text at fault: an
+            unknown name, a syntax error with its column, a constant or output value that
+            does not fit, or a transition that can never fire (naming the earlier ones that
+            cover it).
+
+        Examples
+        --------
+        >>> t = StateTable.from_transitions(name="gate", reset="shut",
+        ...     inputs=["call", "clear"], outputs={"motor": 1}, default_outputs={"motor": 0},
+        ...     transitions=[("shut", "call & clear", "open", {"motor": 1}),
+        ...                  ("shut", "else", "shut", {}),
+        ...                  ("open", "~clear", "shut", {}),
+        ...                  ("open", "else", "open", {})])
+        >>> [r for r in t.rows if r[0] == "shut"]
+        [('shut', '11', 'open', '1'), ('shut', '0-', 'shut', '0'), ('shut', '10', 'shut', '0')]
+        """
+        from fsmsynth.transitions import compile_transitions
+
+        return compile_transitions(name=name, kind=kind, reset=reset, inputs=inputs,
+                                   outputs=outputs, transitions=transitions,
+                                   default_outputs=default_outputs, otherwise=otherwise,
+                                   state_outputs=state_outputs, invariants=invariants)
+
+    @classmethod
     def _derived(cls, base: StateTable, *, rows: Iterable[Row], states: Sequence[str],
                  reset: str, state_outputs: Mapping[str, str] | None = None) -> StateTable:
         """A table a stage built from a valid ``base`` (same names and kind), not re-checked.

@@ -16,6 +16,12 @@ RANK = {
 }
 
 
+# The one import against the direction: StateTable.from_transitions is the model's second
+# constructor and hands its work to the guarded-transition front end (a lazy import inside
+# the method, so the model still loads without it).
+ALLOWED = {("fsmsynth.table", "fsmsynth.transitions")}
+
+
 def rank(module: str) -> int:
     if module in RANK:
         return RANK[module]
@@ -37,6 +43,6 @@ def test_nothing_imports_upward() -> None:
             if (isinstance(node, ast.ImportFrom) and node.module
                     and node.module.startswith("fsmsynth")):
                 target = node.module
-                if rank(target) > rank(me):
+                if rank(target) > rank(me) and (me, target) not in ALLOWED:
                     problems.append(f"{me} imports {target}")
     assert problems == []

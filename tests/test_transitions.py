@@ -1,0 +1,233 @@
+"""Guarded transitions: guards compiled by BDDs agree with evaluating them directly.
+
+The reference semantics are plain Boolean algebra and unsigned binary comparison (common
+practice, no source), evaluated here by Python on every input combination, and the priority
+order of an if/elif chain (Python language reference, section 8.1, "The if statement").
+"""
+
+from __future__ import annotations
+
+import itertools
+from typing import Any
+
+import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
+
+from fsmsynth import STORAGES, StateTable, synthesize
+from fsmsynth.errors import TableError
+from fsmsynth.guards import compile_guard
+from fsmsynth.logic import bdd
+
+# A guard as a tree: ("in", i) | ("const", b) | ("not", g) | (op, g, h) with op in & | ^.
+Guard = tuple[Any, ...]
+
+
+def guards(n_inputs: int) -> st.SearchStrategy[Guard]:
+    leaves = st.one_of(st.tuples(st.just("in"), st.integers(0, n_inputs - 1)),
+                       st.tuples(st.just("const"), st.integers(0, 1)))
+    return st.recursive(leaves, lambda inner: st.one_of(
+        st.tuples(st.just("not"), inner),
+        st.tuples(st.sampled_from("&|^"), inner, inner)), max_leaves=5)
+
+
+def text_of(g: Guard, names: list[str]) -> str:
+    if g[0] == "in":
+        return names[g[1]]
+    if g[0] == "const":
+        return str(g[1])
+    if g[0] == "not":
+        return f"~({text_of(g[1], names)})" if len(g[1]) == 3 else f"!{text_of(g[1], names)}"
+    return f"({text_of(g[1], names)} {g[0]} {text_of(g[2], names)})"
+
+
+def holds(g: Guard, point: tuple[int, ...]) -> bool:
+    if g[0] == "in":
+        return bool(point[g[1]])
+    if g[0] == "const":
+        return bool(g[1])
+    if g[0] == "not":
+        return not holds(g[1], point)
+    a, b = holds(g[1], point), holds(g[2], point)
+    return {"&": a and b, "|": a or b, "^": a != b}[g[0]]
+
+
+@st.composite
+def guarded_machines(draw: st.DrawFn) -> tuple[list[str], list[str], list[tuple[Any, ...]], str]:
+    n_inputs = draw(st.integers(1, 4))
+    names = [f"i{k}" for k in range(n_inputs)]
+    states = [f"s{k}" for k in range(draw(st.integers(2, 6)))]
+    transitions: list[tuple[Any, ...]] = []
+    for state in states:
+        for _ in range(draw(st.integers(1, 3))):
+            guard = draw(st.one_of(guards(n_inputs), st.just(("else",))))
+            transitions.append((state, guard, draw(st.sampled_from(states)),
+                                draw(st.integers(0, 1))))
+    if draw(st.booleans()):
+        transitions.insert(0, ("*", draw(guards(n_inputs)), draw(st.sampled_from(states)), 1))
+    return names, states, transitions, draw(st.sampled_from(["dont-care", "stay"]))
+
+
+def expected(state: str, transitions: list[tuple[Any, ...]], point: tuple[int, ...],
+             otherwise: str) -> tuple[str | None, str]:
+    """Direct evaluation: the first transition (``*`` ones first) whose guard holds."""
+    chain = [t for t in transitions if t[0] == "*"] + [t for t in transitions if t[0] == state]
+    for _frm, guard, to, out in chain:
+        if guard == ("else",) or holds(guard, point):
+            return to, str(out)
+    return (state, "0") if otherwise == "stay" else (None, "-")
+
+
+def never_fires(transitions: list[tuple[Any, ...]], n_inputs: int) -> set[int]:
+    """Positions (0-based) of transitions no input point fires, in any state's chain."""
+    dead = set()
+    for k, (frm, _g, _to, _out) in enumerate(transitions):
+        states = {t[0] for t in transitions} - {"*"} if frm == "*" else {frm}
+        for state in states:
+            chain = [j for j, t in enumerate(transitions) if t[0] == "*"] + [
+                j for j, t in enumerate(transitions) if t[0] == state]
+            if all(next((j for j in chain if transitions[j][1] == ("else",)
+                         or holds(transitions[j][1], point)), None) != k
+                   for point in itertools.product((0, 1), repeat=n_inputs)):
+                dead.add(k)
+    return dead
+
+
+def written(transitions: list[tuple[Any, ...]], names: list[str]) -> list[tuple[Any, ...]]:
+    return [(frm, "else" if g == ("else",) else text_of(g, names), to, {"z": out})
+            for frm, g, to, out in transitions]
+
+
+@settings(max_examples=60, deadline=None)
+@given(machine=guarded_machines(), storage=st.sampled_from(sorted(STORAGES)))
+def test_compiled_rows_agree_with_the_guards_in_priority_order(
+        machine: tuple[list[str], list[str], list[tuple[Any, ...]], str], storage: str) -> None:
+    names, states, transitions, otherwise = machine
+    dead = never_fires(transitions, len(names))
+    options: dict[str, Any] = dict(name="m", reset=states[0], inputs=names, outputs=["z"],
+                                   default_outputs={"z": 0}, otherwise=otherwise)
+    if dead:
+        # A transition that never fires is refused, and the one named is truly dead.
+        with pytest.raises(TableError, match="can never fire") as caught:
+            StateTable.from_transitions(transitions=written(transitions, names), **options)
+        assert caught.value.row in dead
+        transitions = [t for k, t in enumerate(transitions) if k not in dead]
+        if not any(t[0] == states[0] for t in transitions):
+            return  # the reset state lost all its transitions: nothing left to build
+    table = StateTable.from_transitions(transitions=written(transitions, names), **options)
+    for state in table.states:
+        for point in itertools.product((0, 1), repeat=len(names)):
+            nxt, out = table.lookup(state, "".join(map(str, point)))
+            assert (nxt, out) == expected(state, transitions, point, otherwise)
+    design = synthesize(table, storage, "binary")
+    assert design.verification
+
+
+@settings(max_examples=200, deadline=None)
+@given(width=st.integers(1, 4), op=st.sampled_from(["==", "!=", "<", "<=", ">", ">="]),
+       data=st.data())
+def test_vector_comparisons_are_unsigned_integer_comparisons(width: int, op: str,
+                                                             data: st.DataObject) -> None:
+    value = data.draw(st.integers(0, (1 << width) - 1))
+    var = bdd.variables(width + 1)
+    bits = {"v": var[:width], "go": [var[width]]}
+    compiled = compile_guard(f"go & v {op} {value}", {"v": width, "go": 1}, bits)
+    python = {"==": int.__eq__, "!=": int.__ne__, "<": int.__lt__, "<=": int.__le__,
+              ">": int.__gt__, ">=": int.__ge__}[op]
+    for number in range(1 << width):
+        for go in (0, 1):
+            point = {var[i]: number >> i & 1 for i in range(width)} | {var[width]: go}
+            assert bool(compiled.restrict(point).is_one()) == (go == 1 and python(number, value))
+    bit = data.draw(st.integers(0, width - 1))
+    picked = compile_guard(f"v[{bit}]", {"v": width}, bits)
+    assert picked is var[bit]
+
+
+def test_a_star_transition_beats_the_states_own_and_stay_fills_the_rest() -> None:
+    table = StateTable.from_transitions(
+        name="hoist", reset="rest", inputs=["up", "stop"], outputs={"motor": 1},
+        default_outputs={"motor": 0},
+        transitions=[("*", "stop", "rest", {}),
+                     ("rest", "up", "lift", {"motor": 1}),
+                     ("lift", "up", "lift", {"motor": 1})],
+        otherwise="stay")
+    assert table.lookup("lift", "11") == ("rest", "0")  # inputs are up, stop
+    assert table.lookup("lift", "10") == ("lift", "1")
+    assert table.lookup("lift", "00") == ("lift", "0")
+    assert table.lookup("rest", "10") == ("lift", "1")
+
+
+def test_a_moore_machine_takes_its_outputs_from_its_states() -> None:
+    table = StateTable.from_transitions(
+        name="lamp", kind="moore", reset="dark", inputs=["press"], outputs=["on"],
+        default_outputs={"on": 0}, state_outputs={"lit": {"on": 1}},
+        transitions=[("dark", "press", "lit", None), ("dark", "else", "dark", None),
+                     ("lit", "press", "dark", None), ("lit", "else", "lit", None)])
+    assert table.output_cube_of("lit") == "1" and table.output_cube_of("dark") == "0"
+    assert synthesize(table, "t", "binary").verification
+
+
+def build(transitions: list[tuple[Any, ...]], inputs: Any = None) -> StateTable:
+    return StateTable.from_transitions(
+        name="m", reset="a", inputs=inputs or ["start", "ok"], outputs={"fill": 1},
+        transitions=transitions)
+
+
+@pytest.mark.parametrize("transitions, message", [
+    ([("a", "start & go", "a", {})],
+     "transition 1 (a -> a, guard 'start & go'): unknown input 'go' at column 9 (inputs: "
+     "start, ok)"),
+    ([("a", "start & (ok", "a", {})],
+     "transition 1 (a -> a, guard 'start & (ok'): expected ')' at column 12, found end of "
+     "guard"),
+    ([("a", "start # ok", "a", {})],
+     "transition 1 (a -> a, guard 'start # ok'): unexpected character '#' at column 7"),
+    ([("a", "start[1]", "a", {})],
+     "transition 1 (a -> a, guard 'start[1]'): bit 1 of 'start' at column 7 is out of "
+     "range: start has bits 0 down to 0"),
+    ([("a", "ok == 2", "a", {})],
+     "transition 1 (a -> a, guard 'ok == 2'): constant 2 at column 7 does not fit 'ok' "
+     "(1 bit: 0 to 1)"),
+    ([("a", "1", "a", {"fill": 2})],
+     "transition 1 (a -> a, guard '1'): value 2 does not fit output 'fill' (1 bit: 0 to 1)"),
+    ([("a", "1", "a", {"drain": 1})],
+     "transition 1 (a -> a, guard '1'): unknown output 'drain' (outputs: fill)"),
+    ([("a", "start", "a", {}), ("a", "ok", "a", {}), ("a", "start & ok", "a", {})],
+     "transition 3 (a -> a, guard 'start & ok') can never fire: earlier guards of state 'a' "
+     "cover it (transitions 1, 2)"),
+    ([("a", "1", "a", {}), ("a", "else", "a", {})],
+     "transition 2 (a -> a, guard 'else') can never fire: earlier guards of state 'a' cover "
+     "it (transitions 1)"),
+    ([("a", "start & ~start", "a", {})],
+     "transition 1 (a -> a, guard 'start & ~start') can never fire: its guard never holds"),
+])
+def test_each_error_names_the_transition_and_the_text_at_fault(
+        transitions: list[tuple[Any, ...]], message: str) -> None:
+    with pytest.raises(TableError) as caught:
+        build(transitions)
+    assert caught.value.message == message
+
+
+def test_a_vector_used_as_a_bit_is_refused_by_the_guard_compiler() -> None:
+    var = bdd.variables(2)
+    with pytest.raises(ValueError, match=r"^'mode' at column 1 is a 2-bit vector, not a "
+                                         r"condition: compare it \(mode == 1\) or take a bit "
+                                         r"\(mode\[0\]\)$"):
+        compile_guard("mode & 1", {"mode": 2}, {"mode": var})
+
+
+def test_wide_ports_are_refused_until_vectors_reach_the_writers() -> None:
+    with pytest.raises(TableError, match="vector ports are not supported yet"):
+        build([("a", "1", "a", {})], inputs={"mode": 2})
+
+
+def test_the_readme_example_compiles_and_its_design_verifies() -> None:
+    from pathlib import Path
+    readme = (Path(__file__).resolve().parent.parent / "README.md").read_text()
+    block = readme[readme.index("table = StateTable.from_transitions("):]
+    namespace: dict[str, Any] = {"StateTable": StateTable}
+    exec(block[:block.index("```")], namespace)
+    table = namespace["table"]
+    assert table.lookup("open", "111") == ("shut", "01")  # the abort beats the state's own
+    assert table.lookup("open", "110") == ("open", "00")  # otherwise="stay"
+    assert synthesize(table, "jk", "binary").verification
