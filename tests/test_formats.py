@@ -71,7 +71,8 @@ def test_toml_syntax_error_reports_its_line() -> None:
 def test_unknown_key() -> None:
     text = GOOD.replace('kind = "mealy"', 'knd = "mealy"')
     assert error_of(text) == ("lamp.toml:3: unknown key 'knd': the keys are name, kind, inputs, "
-                              "outputs, reset, states, rows, state_outputs")
+                              "outputs, reset, states, rows, state_outputs, transition, "
+                              "default_outputs, otherwise")
 
 
 def test_bad_name_reports_the_line_of_inputs() -> None:

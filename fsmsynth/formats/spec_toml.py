@@ -15,7 +15,10 @@ from fsmsynth.errors import SpecFileError, TableError
 from fsmsynth.formats.text_files import read_text
 from fsmsynth.table import StateTable
 
-KEYS = ("name", "kind", "inputs", "outputs", "reset", "states", "rows", "state_outputs")
+KEYS = ("name", "kind", "inputs", "outputs", "reset", "states", "rows", "state_outputs",
+        "transition", "default_outputs", "otherwise")
+TRANSITION_KEYS = ("from", "when", "to", "set")
+"""Fields of one ``[[transition]]`` entry: present state, guard, next state, outputs set."""
 _POSITION = re.compile(r"\(at line (\d+), column \d+\)")
 
 
@@ -44,6 +47,8 @@ def parse_spec(text: str, path: str = "<string>") -> StateTable:
         if key not in KEYS:
             raise SpecFileError(f"unknown key {key!r}: the keys are {', '.join(KEYS)}",
                                 path=path, line=lines.key(key))
+    if "transition" in data:
+        return _guarded(data, path, lines)
     for key in ("name", "inputs", "outputs", "reset", "rows"):
         if key not in data:
             raise SpecFileError(f"missing key {key!r}", path=path)
@@ -78,6 +83,54 @@ def parse_spec(text: str, path: str = "<string>") -> StateTable:
     except TableError as exc:
         raise SpecFileError(exc.message, path=path, line=lines.locate(exc, data), state=exc.state,
                             row=exc.row, name=exc.name) from None
+
+
+def _guarded(data: dict[str, Any], path: str, lines: _Lines) -> StateTable:
+    """The guarded form: ``[[transition]]`` entries with named fields."""
+    if "rows" in data:
+        raise SpecFileError("give either 'rows' (cubes) or [[transition]] entries (guards), "
+                            "not both", path=path, line=lines.key("rows"))
+    for key in ("name", "inputs", "outputs", "reset"):
+        if key not in data:
+            raise SpecFileError(f"missing key {key!r}", path=path)
+    for key in ("name", "kind", "reset", "otherwise"):
+        _expect(data, key, str, path, lines)
+    entries = data["transition"]
+    if not isinstance(entries, list) or not all(isinstance(e, dict) for e in entries):
+        raise SpecFileError("write transitions as [[transition]] tables", path=path,
+                            line=lines.key("transition"))
+    transitions = []
+    for i, entry in enumerate(entries):
+        where = lines.entry("transition", i)
+        for key in entry:
+            if key not in TRANSITION_KEYS:
+                raise SpecFileError(f"transition {i + 1}: unknown field {key!r}: the fields "
+                                    f"are {', '.join(TRANSITION_KEYS)}", path=path,
+                                    line=where, row=i)
+        for key in ("from", "when", "to"):
+            if not isinstance(entry.get(key), str):
+                raise SpecFileError(f"transition {i + 1}: field {key!r} must be a string",
+                                    path=path, line=where, row=i)
+        given = entry.get("set")
+        if given is not None and not isinstance(given, dict):
+            raise SpecFileError(f"transition {i + 1}: 'set' must be a table of output = "
+                                "value", path=path, line=where, row=i)
+        if data.get("kind", "mealy") == "moore" and given is None:
+            transitions.append((entry["from"], entry["when"], entry["to"], None))
+        else:
+            transitions.append((entry["from"], entry["when"], entry["to"], given or {}))
+    try:
+        return StateTable.from_transitions(
+            name=data["name"], kind=data.get("kind", "mealy"), reset=data["reset"],
+            inputs=data["inputs"], outputs=data["outputs"], transitions=transitions,
+            default_outputs=data.get("default_outputs"),
+            otherwise=data.get("otherwise", "dont-care"),
+            state_outputs=data.get("state_outputs"))
+    except TableError as exc:
+        line = lines.entry("transition", exc.row) if exc.row is not None else \
+            lines.locate(exc, data)
+        raise SpecFileError(exc.message, path=path, line=line, state=exc.state, row=exc.row,
+                            name=exc.name) from None
 
 
 def _expect(data: dict[str, Any], key: str, kind: type, path: str, lines: _Lines) -> None:
@@ -121,6 +174,16 @@ class _Lines:
         for n, line in enumerate(self.lines, start=1):
             if line.strip().replace(" ", "") == f"[{name}]":
                 return n
+        return None
+
+    def entry(self, name: str, index: int) -> int | None:
+        """Line of the header of element ``index`` of the ``[[name]]`` array of tables."""
+        seen = -1
+        for n, line in enumerate(self.lines, start=1):
+            if line.strip().replace(" ", "").startswith(f"[[{name}]]"):
+                seen += 1
+                if seen == index:
+                    return n
         return None
 
     def row(self, index: int) -> int | None:
