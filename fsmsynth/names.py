@@ -9,6 +9,7 @@ fsmsynth itself puts in the netlist and the equations.
 from __future__ import annotations
 
 import re
+from collections.abc import Sequence
 
 _IDENTIFIER = re.compile(r"[A-Za-z_][A-Za-z0-9_$]*\Z")
 
@@ -39,8 +40,68 @@ RESERVED_PREFIX = "fs_"
 _EQUATION_NAME = re.compile(r"[QDTJKSRE][0-9]+\Z")
 
 
+_BIT = re.compile(r"(?P<base>[A-Za-z_][A-Za-z0-9_$]*)\[(?P<index>0|[1-9][0-9]*)\]\Z")
+
+
+def bit_name(base: str, index: int) -> str:
+    """The name of bit ``index`` of vector port ``base``: ``mode[1]`` (bit 0 least
+    significant), which is also its bit-select in Verilog."""
+    return f"{base}[{index}]"
+
+
+def split_bit(name: str) -> tuple[str, int] | None:
+    """``("mode", 1)`` for ``"mode[1]"``; ``None`` for a 1-bit name."""
+    match = _BIT.match(name)
+    return (match.group("base"), int(match.group("index"))) if match else None
+
+
+def ports_of(names: Sequence[str]) -> list[tuple[str, int | None]]:
+    """The ports of a list of 1-bit names: ``(name, None)`` for a plain bit, ``(base,
+    width)`` for the bits ``base[width-1] .. base[0]`` of a vector (listed together, most
+    significant first, as :func:`vector_problem` requires)."""
+    ports: list[tuple[str, int | None]] = []
+    for name in names:
+        bit = split_bit(name)
+        if bit is None:
+            ports.append((name, None))
+        elif not ports or ports[-1][0] != bit[0]:
+            ports.append((bit[0], bit[1] + 1))
+    return ports
+
+
+def vector_problem(names: Sequence[str]) -> str | None:
+    """Why bit names do not form whole vectors (``v[w-1]`` down to ``v[0]`` in a row, and no
+    other name ``v``), or ``None``."""
+    plain = {n for n in names if split_bit(n) is None}
+    at = 0
+    while at < len(names):
+        bit = split_bit(names[at])
+        if bit is None:
+            at += 1
+            continue
+        base, top = bit
+        want = [bit_name(base, i) for i in range(top, -1, -1)]
+        if list(names[at:at + len(want)]) != want:
+            return (f"the bits of vector {base!r} must be listed together, most significant "
+                    f"first: {', '.join(want)}")
+        if base in plain:
+            return f"{base!r} is both a 1-bit name and a vector"
+        at += len(want)
+    bases = [b for b, w in ports_of(names) if w is not None]
+    for base in bases:
+        if bases.count(base) > 1:
+            return f"the bits of vector {base!r} must be listed together"
+    return None
+
+
 def name_problem(name: object) -> str | None:
-    """Why ``name`` cannot name a machine, input or output, or ``None`` when it can."""
+    """Why ``name`` cannot name a machine, input or output, or ``None`` when it can.
+
+    A bit of a vector port, ``mode[1]``, is judged by its vector's name."""
+    if isinstance(name, str):
+        bit = split_bit(name)
+        if bit is not None:
+            return name_problem(bit[0])
     if not isinstance(name, str) or not _IDENTIFIER.match(name):
         return (
             "is not a legal Verilog identifier: start with a letter or _, "

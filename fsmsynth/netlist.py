@@ -250,7 +250,7 @@ def build_netlist(name: str, inputs: Sequence[str], outputs: Sequence[str], cove
     k = len(storages)
     var_nets = [state_net(b) for b in range(k)] + list(inputs)
     inverted_nets = [f"{RESERVED_PREFIX}nq{b}" for b in range(k)] + [
-        f"{RESERVED_PREFIX}n_{i}" for i in inputs]
+        f"{RESERVED_PREFIX}n_{i.replace('[', '_').replace(']', '')}" for i in inputs]
     gates: list[Gate] = []
 
     def new_gate(kind: str, ins: tuple[str, ...], out: str) -> None:

@@ -14,7 +14,7 @@ from typing import Literal
 from fsmsynth.errors import TableError
 from fsmsynth.frozen import FrozenMap
 from fsmsynth.logic.cube import Cube
-from fsmsynth.names import name_problem
+from fsmsynth.names import name_problem, ports_of, vector_problem
 
 Kind = Literal["mealy", "moore"]
 Row = tuple[str, str, "str | None", "str | None"]
@@ -167,8 +167,11 @@ class StateTable:
         outputs (``otherwise="stay"``).  States are declared in order of first mention.
 
         The rows of the result are the compiled cubes (disjoint, from BDDs); everything else
-        is as :meth:`from_rows` builds it.  Inputs and outputs are 1 bit wide for now (a
-        dict gives widths; a width above 1 is refused), and ``invariants`` are refused.
+        is as :meth:`from_rows` builds it.  ``inputs`` and ``outputs`` are lists of 1-bit
+        names or dicts of name -> width; a vector ``mode`` of width 2 becomes the bits
+        ``mode[1]``, ``mode[0]`` (most significant first in cubes, bit 0 least significant),
+        which are also their Verilog bit-selects of one port ``[1:0] mode``.
+        ``invariants`` are refused for now.
 
         Raises
         ------
@@ -264,6 +267,14 @@ def _check_names(name: str, inputs: Sequence[str], outputs: Sequence[str]) -> No
                     f"{role} name {n!r} is the machine name too: rename one of them", name=n
                 )
             seen[n] = role
+        problem = vector_problem(names)
+        if problem:
+            raise TableError(f"{role}s: {problem}")
+    port_names = [p for p, _w in ports_of(list(inputs) + list(outputs))]
+    for port in port_names:
+        if port_names.count(port) > 1 or port == name:
+            raise TableError(f"port {port!r} is named twice (as a vector and as another "
+                             "input, output or the machine): rename one", name=port)
 
 
 def _check_cube(text: object, width: int, what: str, where: str, row: int | None,

@@ -16,6 +16,7 @@ from typing import TYPE_CHECKING, Any
 from fsmsynth.errors import TableError
 from fsmsynth.guards import GuardError, compile_guard
 from fsmsynth.logic import bdd
+from fsmsynth.names import bit_name
 
 if TYPE_CHECKING:
     from fsmsynth.table import StateTable
@@ -36,12 +37,14 @@ def _widths(what: str, ports: object) -> dict[str, int]:
         if isinstance(width, bool) or not isinstance(width, int) or width < 1:
             raise TableError(f"{what[:-1]} {port!r}: width must be a positive integer, not "
                              f"{width!r}", name=str(port))
-        if width > 1:
-            raise TableError(
-                f"{what[:-1]} {port!r} is {width} bits wide: vector ports are not supported "
-                f"yet; give its bits as 1-bit {what} ({port}_0 .. {port}_{width - 1})",
-                name=str(port))
     return widths
+
+
+def _bits(widths: Mapping[str, int]) -> list[str]:
+    """The 1-bit names of ports: ``mode[1], mode[0]`` for a vector (MSB first)."""
+    return [port if width == 1 else bit_name(port, i)
+            for port, width in widths.items()
+            for i in (range(width - 1, -1, -1) if width > 1 else (0,))]
 
 
 def _value(port: str, width: int, value: object, where: str) -> str:
@@ -101,9 +104,11 @@ def compile_transitions(*, name: str, kind: str, reset: str, inputs: object, out
     if isinstance(transitions, (str, bytes)) or not isinstance(transitions, Sequence):
         raise TableError(f"transitions must be a list of (from, guard, to, outputs), not "
                          f"{transitions!r}")
-    names = list(in_widths)
+    names = _bits(in_widths)
     var = bdd.variables(len(names))
-    bits = {port: [var[i]] for i, port in enumerate(names)}
+    index = {n: i for i, n in enumerate(names)}
+    bits = {port: [var[index[port if width == 1 else bit_name(port, i)]] for i in range(width)]
+            for port, width in in_widths.items()}
     parsed: list[tuple[int, str, str, Any, str, str | None]] = []
     states: list[str] = []
     for pos, entry in enumerate(transitions, start=1):
@@ -182,6 +187,6 @@ def compile_transitions(*, name: str, kind: str, reset: str, inputs: object, out
     elif state_outputs:
         raise TableError("state_outputs is for Moore machines; give a Mealy machine's outputs "
                          "on its transitions")
-    return StateTable.from_rows(name=name, kind=kind, inputs=names, outputs=list(out_widths),
+    return StateTable.from_rows(name=name, kind=kind, inputs=names, outputs=_bits(out_widths),
                                 rows=rows, reset=reset, states=states,
                                 state_outputs=moore_words)

@@ -216,9 +216,37 @@ def test_a_vector_used_as_a_bit_is_refused_by_the_guard_compiler() -> None:
         compile_guard("mode & 1", {"mode": 2}, {"mode": var})
 
 
-def test_wide_ports_are_refused_until_vectors_reach_the_writers() -> None:
-    with pytest.raises(TableError, match="vector ports are not supported yet"):
-        build([("a", "1", "a", {})], inputs={"mode": 2})
+def test_vector_ports_become_msb_first_bits_and_one_port_each() -> None:
+    # Bit 0 least significant, as Verilog vectors declared [w-1:0] (IEEE 1364-2005, 4.2.1).
+    import json
+    table = StateTable.from_transitions(
+        name="mixer", reset="idle", inputs={"start": 1, "mode": 2}, outputs={"speed": 3},
+        default_outputs={"speed": 0},
+        transitions=[("idle", "start & mode == 2", "run", {"speed": 5}),
+                     ("idle", "else", "idle", {}), ("run", "mode < 2", "idle", {}),
+                     ("run", "else", "run", {"speed": "1-0"})])
+    assert table.inputs == ("start", "mode[1]", "mode[0]")
+    assert table.outputs == ("speed[2]", "speed[1]", "speed[0]")
+    assert table.lookup("idle", "110") == ("run", "101")   # start=1, mode=2
+    assert table.lookup("idle", "111") == ("idle", "000")  # mode=3
+    assert table.lookup("run", "011") == ("run", "1-0")
+    design = synthesize(table, "jk", "binary")
+    assert design.verification
+    assert "input  wire [1:0] mode" in design.verilog
+    assert "output wire [2:0] speed" in design.verilog
+    ports = json.loads(design.json)["ports"]
+    assert {"name": "mode", "direction": "input", "width": 2,
+            "bits": ["mode[1]", "mode[0]"]} in ports
+    assert any(str(s) == "mode[1]" for eq in design.equations.values()
+               for s in eq.to_sympy().free_symbols)
+
+
+def test_bits_of_a_vector_must_be_whole_and_in_order() -> None:
+    with pytest.raises(TableError) as caught:
+        StateTable.from_rows(name="m", inputs=["v[0]", "v[1]"], outputs=[], reset="a",
+                             rows=[("a", "--", "a", "")])
+    assert caught.value.message == ("inputs: the bits of vector 'v' must be listed together, "
+                                    "most significant first: v[1], v[0]")
 
 
 def test_the_readme_example_compiles_and_its_design_verifies() -> None:

@@ -38,6 +38,14 @@ def machines() -> list[StateTable]:
     tables.append(StateTable.from_rows(  # an input the logic does not need
         name="ignores", inputs=["a", "b"], outputs=["y"], reset="p",
         rows=[("p", "1-", "q", "0"), ("p", "0-", "p", "0"), ("q", "--", "p", "1")]))
+    tables.append(StateTable.from_transitions(  # vector ports; bit 0 of mode read by nothing
+        name="spinner", reset="idle", inputs={"start": 1, "mode": 2, "level_ok": 1},
+        outputs={"fill": 1, "speed": 3}, default_outputs={"fill": 0, "speed": 0},
+        transitions=[("idle", "start & mode[1]", "fill", {"fill": 1}),
+                     ("idle", "else", "idle", {}),
+                     ("fill", "level_ok", "spin", {"speed": 5}),
+                     ("fill", "else", "fill", {"fill": 1}),
+                     ("spin", "1", "idle", {"speed": "---"})]))
     return tables
 
 

@@ -99,7 +99,7 @@ def _guarded(data: dict[str, Any], path: str, lines: _Lines) -> StateTable:
     if not isinstance(entries, list) or not all(isinstance(e, dict) for e in entries):
         raise SpecFileError("write transitions as [[transition]] tables", path=path,
                             line=lines.key("transition"))
-    transitions = []
+    transitions: list[tuple[str, str, str, dict[str, Any] | None]] = []
     for i, entry in enumerate(entries):
         where = lines.entry("transition", i)
         for key in entry:

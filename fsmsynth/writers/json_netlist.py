@@ -20,6 +20,7 @@ from __future__ import annotations
 import json
 from collections.abc import Mapping
 
+from fsmsynth.names import bit_name, ports_of
 from fsmsynth.netlist import Netlist
 
 SCHEMA = "fsmsynth-netlist"
@@ -36,6 +37,14 @@ def netlist_data(netlist: Netlist, cost: Mapping[str, object] | None = None) -> 
         "reset": netlist.reset,
         "inputs": list(netlist.inputs),
         "outputs": [{"port": p, "net": n} for p, n in netlist.outputs],
+        # The module's ports as the Verilog declares them: a vector is one port whose bits
+        # (most significant first) are the 1-bit names used everywhere else.
+        "ports": [{"name": name, "direction": direction, "width": width or 1,
+                   "bits": [name] if width is None else
+                   [bit_name(name, i) for i in range(width - 1, -1, -1)]}
+                  for direction, names in (("input", netlist.inputs),
+                                           ("output", [p for p, _n in netlist.outputs]))
+                  for name, width in ports_of(names)],
         "gates": [{"name": g.name, "kind": g.kind, "inputs": list(g.inputs), "output": g.output}
                   for g in netlist.gates],
         "flip_flops": [{"name": ff.name, "kind": ff.storage.name, "bit": ff.bit,

@@ -10,7 +10,7 @@ pragma with a comment saying why.
 
 from __future__ import annotations
 
-from fsmsynth.names import RESERVED_PREFIX
+from fsmsynth.names import RESERVED_PREFIX, ports_of, split_bit
 from fsmsynth.netlist import FlipFlop, Netlist
 from fsmsynth.storage import Storage
 from fsmsynth.version import __version__
@@ -45,9 +45,10 @@ def write_verilog(netlist: Netlist, *, header: str = "") -> str:
         f"module {netlist.name} (",
     ]
     decls = [f"input  wire {netlist.clock}", f"input  wire {netlist.reset}"]
-    decls += [f"input  wire {i}" for i in netlist.inputs]
-    decls += [f"output wire {p}" for p, _n in netlist.outputs]
-    unused_inputs = [i for i in netlist.inputs if i not in read]
+    decls += [f"input  wire {_range(w)}{i}" for i, w in ports_of(netlist.inputs)]
+    decls += [f"output wire {_range(w)}{p}" for p, w in ports_of([p for p, _n in netlist.outputs])]
+    # A vector port is marked unused when any of its bits is.
+    unused_inputs = {(split_bit(i) or (i, 0))[0] for i in netlist.inputs if i not in read}
     for idx, decl in enumerate(decls):
         sep = "," if idx < len(decls) - 1 else ""
         name = decl.split()[-1]
@@ -89,6 +90,11 @@ def write_verilog(netlist: Netlist, *, header: str = "") -> str:
         lines += _cell(storage, edge)
     lines.append("`default_nettype wire")
     return "\n".join(lines) + "\n"
+
+
+def _range(width: int | None) -> str:
+    """``[w-1:0] `` for a vector port, nothing for a 1-bit one."""
+    return "" if width is None else f"[{width - 1}:0] "
 
 
 def _instance(ff: FlipFlop, netlist: Netlist) -> str:
