@@ -10,6 +10,7 @@ from __future__ import annotations
 from collections import deque
 from dataclasses import dataclass
 
+from fsmsynth.guards import guard_text
 from fsmsynth.logic.cube import Cube, sharp
 from fsmsynth.table import StateTable
 
@@ -27,6 +28,8 @@ class TableReport:
     unspecified:
         ``(state, cubes)`` for each state with input combinations that no row lists, as
         disjoint input cubes.
+    inputs:
+        The table's input names, so that :meth:`lines` can write those cubes as guards.
     dont_care_next:
         ``(state, input cube)`` of rows whose next state is a don't care.
     """
@@ -35,6 +38,7 @@ class TableReport:
     unreachable: tuple[str, ...]
     unspecified: tuple[tuple[str, tuple[str, ...]], ...]
     dont_care_next: tuple[tuple[str, str], ...]
+    inputs: tuple[str, ...] = ()
 
     @property
     def completely_specified(self) -> bool:
@@ -47,7 +51,10 @@ class TableReport:
         if self.unreachable:
             out.append(f"unreachable from reset: {', '.join(self.unreachable)}")
         for state, cubes in self.unspecified:
-            out.append(f"state {state!r}: no row for inputs {', '.join(cubes)} "
+            guards = " | ".join(
+                f"({g})" if "&" in g and len(cubes) > 1 else g
+                for g in (guard_text(Cube.from_string(c), self.inputs) for c in cubes))
+            out.append(f"state {state!r}: nothing covers {guards} "
                        "(next state and outputs are don't cares there)")
         for state, cube in self.dont_care_next:
             out.append(f"state {state!r}: next state is a don't care for inputs {cube!r}")
@@ -86,4 +93,5 @@ def check_table(table: StateTable) -> TableReport:
         unreachable=tuple(s for s in table.states if s not in reached),
         unspecified=tuple(unspecified),
         dont_care_next=dont_care,
+        inputs=table.inputs,
     )

@@ -30,6 +30,8 @@ from dataclasses import dataclass
 from typing import Any
 
 from fsmsynth.logic import bdd
+from fsmsynth.logic.cube import Cube
+from fsmsynth.names import ports_of
 
 _TOKEN = re.compile(r"\s*(?:(?P<name>[A-Za-z_][A-Za-z0-9_$]*)|(?P<number>[0-9]+)"
                     r"|(?P<op>==|!=|<=|>=|[<>&|^~!()\[\]]))")
@@ -237,3 +239,23 @@ def compile_guard(text: str, widths: Mapping[str, int],
         Naming the column and the text at fault.
     """
     return _Parser(text, widths, bits).parse()
+
+
+def guard_text(cube: Cube, inputs: Sequence[str]) -> str:
+    """A cube over a table's 1-bit ``inputs`` written as a guard: a vector whose bits the
+    cube fixes all together becomes a comparison (``mode == 3``), others their bits
+    (``mode[1]``, ``~start``); the whole space is ``1``."""
+    parts: list[str] = []
+    at = 0
+    for port, width in ports_of(inputs):
+        n = width or 1
+        chars = [cube.literal_char(at + k) for k in range(n)]  # most significant first
+        at += n
+        if width is not None and "-" not in chars:
+            parts.append(f"{port} == {int(''.join(chars), 2)}")
+            continue
+        for k, char in enumerate(chars):
+            name = port if width is None else f"{port}[{n - 1 - k}]"
+            if char != "-":
+                parts.append(name if char == "1" else f"~{name}")
+    return " & ".join(parts) or "1"

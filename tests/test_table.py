@@ -153,7 +153,7 @@ def test_report_lists_unreachable_states_and_missing_inputs() -> None:
     assert report.dont_care_next == (("lit", "--"),)
     assert report.lines() == [
         "unreachable from reset: lit",
-        "state 'idle': no row for inputs 0- (next state and outputs are don't cares there)",
+        "state 'idle': nothing covers ~go (next state and outputs are don't cares there)",
         "state 'lit': next state is a don't care for inputs '--'",
     ]
 

@@ -311,3 +311,14 @@ def test_the_bundled_guarded_example_builds_and_verifies() -> None:
         assert table.lookup(state, "1100010") == ("hold", "0001")
     for storage in sorted(STORAGES):
         assert synthesize(table, storage, "binary").verification
+
+
+def test_check_lists_what_no_guard_covers_as_guards() -> None:
+    from fsmsynth.check import check_table
+    table = StateTable.from_transitions(
+        name="m", reset="a", inputs={"start": 1, "mode": 2}, outputs=[],
+        transitions=[("a", "start & mode != 3", "a", {}), ("a", "~start & mode[1]", "a", {})])
+    # Left open: start=1 with mode=3, and start=0 with mode[1]=0.
+    assert check_table(table).lines() == [
+        "state 'a': nothing covers (~start & ~mode[1]) | (start & mode == 3) (next state and "
+        "outputs are don't cares there)"]
