@@ -164,7 +164,8 @@ class StateTable:
         A state's transitions are tried in the order written, after those whose ``from`` is
         ``"*"``; the first whose guard holds fires.  Input combinations no guard covers are
         unspecified (``otherwise="dont-care"``) or stay in the state with the default
-        outputs (``otherwise="stay"``).  States are declared in order of first mention.
+        outputs (``otherwise="stay"``).  States are declared in the order they first appear
+        as ``from``, then those that appear only as ``to``.
 
         The rows of the result are the compiled cubes (disjoint, from BDDs); everything else
         is as :meth:`from_rows` builds it.  ``inputs`` and ``outputs`` are lists of 1-bit

@@ -143,9 +143,11 @@ def compile_transitions(*, name: str, kind: str, reset: str, inputs: object, out
         else:
             word = _output_word(out_widths, defaults, given, where)
         parsed.append((pos, frm, guard, points, to, word))
-        for state in (frm, to):
-            if state != ANY_STATE and state not in states:
-                states.append(state)
+    # Declaration order (it fixes binary and Gray codes): present states as first written,
+    # then states that only appear as next states.
+    for state in [p[1] for p in parsed] + [p[4] for p in parsed]:
+        if state != ANY_STATE and state not in states:
+            states.append(state)
     if ANY_STATE in (p[4] for p in parsed):
         raise TableError("a transition goes to '*': name its next state")
     rows: list[tuple[str, str, str | None, str | None]] = []

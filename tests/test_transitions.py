@@ -322,3 +322,33 @@ def test_check_lists_what_no_guard_covers_as_guards() -> None:
     assert check_table(table).lines() == [
         "state 'a': nothing covers (~start & ~mode[1]) | (start & mode == 3) (next state and "
         "outputs are don't cares there)"]
+
+
+def test_the_ten_input_kiln_written_both_ways_gives_one_design() -> None:
+    from pathlib import Path
+
+    from fsmsynth.formats import read_table
+    examples = Path(__file__).resolve().parent.parent / "examples"
+    guarded, cubes = examples / "glass_kiln.toml", examples / "glass_kiln_cubes.toml"
+    table = read_table(guarded)
+    assert len(table.inputs) == 10 and read_table(cubes) == table
+    for storage in ("d", "jk"):
+        a, b = synthesize(table, storage, "binary"), synthesize(read_table(cubes), storage,
+                                                                "binary")
+        assert a.verilog == b.verilog and a.verification
+
+    def lines(path: Path) -> int:
+        return sum(1 for line in path.read_text().splitlines()
+                   if line.strip() and not line.lstrip().startswith("#"))
+    assert 3 * lines(guarded) <= lines(cubes)
+
+
+def test_an_inline_transition_array_reports_the_line_of_the_entry() -> None:
+    from fsmsynth.formats.spec_toml import parse_spec
+    text = ('name = "m"\ninputs = { go = 1, level = 2 }\noutputs = []\nreset = "a"\n'
+            'transition = [\n  { from = "a", when = "go", to = "a" },\n'
+            '  { from = "a", when = "level == 4", to = "a" },\n]\n')
+    with pytest.raises(TableError) as caught:
+        parse_spec(text, "m.toml")
+    assert str(caught.value) == ("m.toml:7: transition 2 (a -> a, guard 'level == 4'): "
+                                 "constant 4 at column 10 does not fit 'level' (2 bits: 0 to 3)")

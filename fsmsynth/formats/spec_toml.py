@@ -177,18 +177,20 @@ class _Lines:
         return None
 
     def entry(self, name: str, index: int) -> int | None:
-        """Line of the header of element ``index`` of the ``[[name]]`` array of tables."""
+        """Line of element ``index`` of ``name``: a ``[[name]]`` header, or the ``{`` of an
+        inline table in ``name = [ {...}, ... ]``."""
         seen = -1
         for n, line in enumerate(self.lines, start=1):
             if line.strip().replace(" ", "").startswith(f"[[{name}]]"):
                 seen += 1
                 if seen == index:
                     return n
-        return None
+        return self.row(index, name, "{") if seen < 0 else None
 
-    def row(self, index: int) -> int | None:
-        """Line where element ``index`` of the top-level ``rows`` array starts."""
-        start = self.key("rows")
+    def row(self, index: int, key: str = "rows", opener: str = "[") -> int | None:
+        """Line where element ``index`` of the top-level array ``key`` starts (elements are
+        arrays, or inline tables with ``opener="{"``)."""
+        start = self.key(key)
         if start is None:
             return None
         offset = sum(len(line) + 1 for line in self.lines[:start - 1])
@@ -205,13 +207,13 @@ class _Lines:
             elif ch in "\"'":
                 i = _skip_string(text, i)
                 continue
-            elif ch == "[":
+            elif ch in "[{":
                 depth += 1
-                if depth == 2:
+                if depth == 2 and ch == opener:
                     seen += 1
                     if seen == index:
                         return line
-            elif ch == "]":
+            elif ch in "]}":
                 depth -= 1
                 if depth == 0:
                     return None
