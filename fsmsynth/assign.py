@@ -46,6 +46,7 @@ from collections.abc import Callable, Iterator, Sequence
 from concurrent.futures import Future, ProcessPoolExecutor
 from concurrent.futures import TimeoutError as FutureTimeout
 from dataclasses import dataclass, field, replace
+from typing import Any
 
 from fsmsynth.cost import CostWeights, cost_of, logic_shape
 from fsmsynth.encode import Encoding, encode
@@ -448,12 +449,25 @@ def _score_all(score: Scorer, candidates: Iterator[tuple[int, ...]], width: int,
 
 def _stop_pool(pool: ProcessPoolExecutor) -> None:
     """Cancel what is queued and end the worker processes now, leaving none behind."""
-    processes = list(getattr(pool, "_processes", {}).values())
+    def workers() -> list[Any]:
+        return list((getattr(pool, "_processes", None) or {}).values())
+
+    processes = workers()
     pool.shutdown(wait=False, cancel_futures=True)
-    for process in processes:
-        process.terminate()
-    for process in processes:
-        process.join(timeout=5)
+    # The pool may start a worker while it is being shut down: look again after the first
+    # round, and stop whatever is still alive.
+    for _round in range(3):
+        alive = [p for p in dict.fromkeys(processes + workers()) if p.is_alive()]
+        if not alive:
+            break
+        for process in alive:
+            process.terminate()
+        for process in alive:
+            process.join(timeout=5)
+            if process.is_alive():
+                process.kill()
+                process.join(timeout=5)
+        processes = alive
 
 
 def count_candidates(n: int, width: int) -> int:
