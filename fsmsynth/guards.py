@@ -31,7 +31,7 @@ from typing import Any
 
 from fsmsynth.logic import bdd
 from fsmsynth.logic.cube import Cube
-from fsmsynth.names import ports_of
+from fsmsynth.names import port_bits, ports_of
 
 _TOKEN = re.compile(r"\s*(?:(?P<name>[A-Za-z_][A-Za-z0-9_$]*)|(?P<number>[0-9]+)"
                     r"|(?P<op>==|!=|<=|>=|[<>&|^~!()\[\]]))")
@@ -254,8 +254,7 @@ def guard_text(cube: Cube, inputs: Sequence[str]) -> str:
         if width is not None and "-" not in chars:
             parts.append(f"{port} == {int(''.join(chars), 2)}")
             continue
-        for k, char in enumerate(chars):
-            name = port if width is None else f"{port}[{n - 1 - k}]"
+        for name, char in zip(port_bits(port, width), chars):
             if char != "-":
                 parts.append(name if char == "1" else f"~{name}")
     return " & ".join(parts) or "1"

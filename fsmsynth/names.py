@@ -49,6 +49,15 @@ def bit_name(base: str, index: int) -> str:
     return f"{base}[{index}]"
 
 
+def port_bits(base: str, width: int | None) -> list[str]:
+    """The 1-bit names of a port, most significant first: ``[base]`` for a plain bit
+    (``width`` ``None``, as :func:`ports_of` gives it), ``base[w-1] .. base[0]`` for a
+    vector."""
+    if width is None:
+        return [base]
+    return [bit_name(base, i) for i in range(width - 1, -1, -1)]
+
+
 def split_bit(name: str) -> tuple[str, int] | None:
     """``("mode", 1)`` for ``"mode[1]"``; ``None`` for a 1-bit name."""
     match = _BIT.match(name)
@@ -71,7 +80,8 @@ def ports_of(names: Sequence[str]) -> list[tuple[str, int | None]]:
 
 def vector_problem(names: Sequence[str]) -> str | None:
     """Why bit names do not form whole vectors (``v[w-1]`` down to ``v[0]`` in a row, and no
-    other name ``v``), or ``None``."""
+    other name ``v``), or ``None``.  The names are distinct (the caller checks that), so a
+    vector cannot appear twice: each of its runs would end in the same ``v[0]``."""
     plain = {n for n in names if split_bit(n) is None}
     at = 0
     while at < len(names):
@@ -80,17 +90,13 @@ def vector_problem(names: Sequence[str]) -> str | None:
             at += 1
             continue
         base, top = bit
-        want = [bit_name(base, i) for i in range(top, -1, -1)]
+        want = port_bits(base, top + 1)
         if list(names[at:at + len(want)]) != want:
             return (f"the bits of vector {base!r} must be listed together, most significant "
                     f"first: {', '.join(want)}")
         if base in plain:
             return f"{base!r} is both a 1-bit name and a vector"
         at += len(want)
-    bases = [b for b, w in ports_of(names) if w is not None]
-    for base in bases:
-        if bases.count(base) > 1:
-            return f"the bits of vector {base!r} must be listed together"
     return None
 
 

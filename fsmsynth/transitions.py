@@ -16,7 +16,7 @@ from typing import TYPE_CHECKING, Any
 from fsmsynth.errors import TableError
 from fsmsynth.guards import GuardError, compile_guard
 from fsmsynth.logic import bdd
-from fsmsynth.names import bit_name
+from fsmsynth.names import port_bits
 
 if TYPE_CHECKING:
     from fsmsynth.table import StateTable
@@ -40,11 +40,10 @@ def _widths(what: str, ports: object) -> dict[str, int]:
     return widths
 
 
-def _bits(widths: Mapping[str, int]) -> list[str]:
-    """The 1-bit names of ports: ``mode[1], mode[0]`` for a vector (MSB first)."""
-    return [port if width == 1 else bit_name(port, i)
-            for port, width in widths.items()
-            for i in (range(width - 1, -1, -1) if width > 1 else (0,))]
+def _bits(widths: Mapping[str, int]) -> dict[str, list[str]]:
+    """Each port's 1-bit names, most significant first: ``mode[1], mode[0]`` for a vector."""
+    return {port: port_bits(port, None if width == 1 else width)
+            for port, width in widths.items()}
 
 
 def _value(port: str, width: int, value: object, where: str) -> str:
@@ -104,11 +103,13 @@ def compile_transitions(*, name: str, kind: str, reset: str, inputs: object, out
     if isinstance(transitions, (str, bytes)) or not isinstance(transitions, Sequence):
         raise TableError(f"transitions must be a list of (from, guard, to, outputs), not "
                          f"{transitions!r}")
-    names = _bits(in_widths)
+    in_bits = _bits(in_widths)
+    names = [bit for port_names in in_bits.values() for bit in port_names]
     var = bdd.variables(len(names))
     index = {n: i for i, n in enumerate(names)}
-    bits = {port: [var[index[port if width == 1 else bit_name(port, i)]] for i in range(width)]
-            for port, width in in_widths.items()}
+    # The guard compiler takes each port's variables least significant first.
+    bits = {port: [var[index[b]] for b in reversed(port_names)]
+            for port, port_names in in_bits.items()}
     parsed: list[tuple[int, str, str, Any, str, str | None]] = []
     states: list[str] = []
     for pos, entry in enumerate(transitions, start=1):
@@ -189,6 +190,7 @@ def compile_transitions(*, name: str, kind: str, reset: str, inputs: object, out
     elif state_outputs:
         raise TableError("state_outputs is for Moore machines; give a Mealy machine's outputs "
                          "on its transitions")
-    return StateTable.from_rows(name=name, kind=kind, inputs=names, outputs=_bits(out_widths),
+    out_names = [b for port_names in _bits(out_widths).values() for b in port_names]
+    return StateTable.from_rows(name=name, kind=kind, inputs=names, outputs=out_names,
                                 rows=rows, reset=reset, states=states,
                                 state_outputs=moore_words)

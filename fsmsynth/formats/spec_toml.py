@@ -47,14 +47,17 @@ def parse_spec(text: str, path: str = "<string>") -> StateTable:
         if key not in KEYS:
             raise SpecFileError(f"unknown key {key!r}: the keys are {', '.join(KEYS)}",
                                 path=path, line=lines.key(key))
-    if "transition" in data:
-        return _guarded(data, path, lines)
-    for key in ("name", "inputs", "outputs", "reset", "rows"):
+    guarded = "transition" in data
+    if guarded and "rows" in data:
+        raise SpecFileError("give either 'rows' (cubes) or [[transition]] entries (guards), "
+                            "not both", path=path, line=lines.key("rows"))
+    for key in ("name", "inputs", "outputs", "reset") + (() if guarded else ("rows",)):
         if key not in data:
             raise SpecFileError(f"missing key {key!r}", path=path)
-    _expect(data, "name", str, path, lines)
-    _expect(data, "kind", str, path, lines)
-    _expect(data, "reset", str, path, lines)
+    for key in ("name", "kind", "reset", "otherwise"):
+        _expect(data, key, str, path, lines)
+    if guarded:
+        return _guarded(data, path, lines)
     for key in ("inputs", "outputs", "states"):
         _expect_strings(data, key, path, lines)
     if not isinstance(data["rows"], list):
@@ -86,15 +89,8 @@ def parse_spec(text: str, path: str = "<string>") -> StateTable:
 
 
 def _guarded(data: dict[str, Any], path: str, lines: _Lines) -> StateTable:
-    """The guarded form: ``[[transition]]`` entries with named fields."""
-    if "rows" in data:
-        raise SpecFileError("give either 'rows' (cubes) or [[transition]] entries (guards), "
-                            "not both", path=path, line=lines.key("rows"))
-    for key in ("name", "inputs", "outputs", "reset"):
-        if key not in data:
-            raise SpecFileError(f"missing key {key!r}", path=path)
-    for key in ("name", "kind", "reset", "otherwise"):
-        _expect(data, key, str, path, lines)
+    """The guarded form: ``[[transition]]`` entries with named fields (the keys both forms
+    share are checked by :func:`parse_spec`)."""
     entries = data["transition"]
     if not isinstance(entries, list) or not all(isinstance(e, dict) for e in entries):
         raise SpecFileError("write transitions as [[transition]] tables", path=path,

@@ -20,7 +20,7 @@ from __future__ import annotations
 import json
 from collections.abc import Mapping
 
-from fsmsynth.names import bit_name, ports_of
+from fsmsynth.names import port_bits, ports_of
 from fsmsynth.netlist import Netlist
 
 SCHEMA = "fsmsynth-netlist"
@@ -40,8 +40,7 @@ def netlist_data(netlist: Netlist, cost: Mapping[str, object] | None = None) -> 
         # The module's ports as the Verilog declares them: a vector is one port whose bits
         # (most significant first) are the 1-bit names used everywhere else.
         "ports": [{"name": name, "direction": direction, "width": width or 1,
-                   "bits": [name] if width is None else
-                   [bit_name(name, i) for i in range(width - 1, -1, -1)]}
+                   "bits": port_bits(name, width)}
                   for direction, names in (("input", netlist.inputs),
                                            ("output", [p for p, _n in netlist.outputs]))
                   for name, width in ports_of(names)],
