@@ -75,6 +75,12 @@ def test_unknown_key() -> None:
                               "default_outputs, otherwise")
 
 
+def test_guarded_form_keys_are_refused_beside_cube_rows() -> None:
+    text = GOOD.replace('kind = "mealy"', 'kind = "mealy"\notherwise = "stay"')
+    assert error_of(text) == ("lamp.toml:4: 'otherwise' belongs to the [[transition]] form; "
+                              "cube rows say it row by row")
+
+
 def test_bad_name_reports_the_line_of_inputs() -> None:
     text = GOOD.replace('"stop"]', '"end"]').replace('"end"', '"always"')
     assert error_of(text) == ("lamp.toml:4: input name 'always' is a Verilog keyword: "

@@ -51,6 +51,11 @@ def parse_spec(text: str, path: str = "<string>") -> StateTable:
     if guarded and "rows" in data:
         raise SpecFileError("give either 'rows' (cubes) or [[transition]] entries (guards), "
                             "not both", path=path, line=lines.key("rows"))
+    for key in () if guarded else ("default_outputs", "otherwise"):
+        if key in data:
+            raise SpecFileError(f"{key!r} belongs to the [[transition]] form; cube rows say "
+                                "it row by row", path=path,
+                                line=lines.key(key))
     for key in ("name", "inputs", "outputs", "reset") + (() if guarded else ("rows",)):
         if key not in data:
             raise SpecFileError(f"missing key {key!r}", path=path)
