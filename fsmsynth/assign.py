@@ -456,10 +456,8 @@ def _stop_pool(pool: ProcessPoolExecutor) -> None:
     pool.shutdown(wait=False, cancel_futures=True)
     # The pool may start a worker while it is being shut down: look again after the first
     # round, and stop whatever is still alive.
-    for _round in range(3):
+    def stop_alive() -> list[Any]:
         alive = [p for p in dict.fromkeys(processes + workers()) if p.is_alive()]
-        if not alive:
-            break
         for process in alive:
             process.terminate()
         for process in alive:
@@ -467,7 +465,18 @@ def _stop_pool(pool: ProcessPoolExecutor) -> None:
             if process.is_alive():
                 process.kill()
                 process.join(timeout=5)
+        return alive
+
+    for _round in range(3):
+        alive = stop_alive()
+        if not alive:
+            break
         processes = alive
+    # The pool's manager thread starts workers; once it has ended, none can appear.
+    manager = getattr(pool, "_executor_manager_thread", None)
+    if manager is not None:
+        manager.join(timeout=5)
+    stop_alive()
 
 
 def count_candidates(n: int, width: int) -> int:
