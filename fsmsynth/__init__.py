@@ -8,11 +8,18 @@ from fsmsynth.equations import Equation
 from fsmsynth.errors import (
     EncodingError,
     FsmSynthError,
+    InvariantError,
     NetlistError,
     OptionError,
     SpecFileError,
     TableError,
     VerificationError,
+)
+from fsmsynth.invariants import (
+    InvariantCheck,
+    InvariantViolation,
+    check_invariants,
+    constrain_outputs,
 )
 from fsmsynth.logic.sop import SopCover, minimize_sop
 from fsmsynth.netlist import FlipFlop, Gate, Netlist
@@ -33,8 +40,9 @@ __all__ = [
     "synthesize", "Design", "verify", "simulate", "Verification", "Counterexample",
     "compare", "Comparison", "ComparisonRow", "convert_storage", "StorageConversion",
     "timing", "TimingReport", "Delays", "GateDelay",
+    "check_invariants", "constrain_outputs", "InvariantCheck", "InvariantViolation",
     # errors
     "FsmSynthError", "TableError", "SpecFileError", "OptionError", "EncodingError",
-    "NetlistError", "VerificationError",
+    "NetlistError", "VerificationError", "InvariantError",
     "__version__",
 ]

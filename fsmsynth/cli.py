@@ -11,6 +11,7 @@ import os
 import signal
 import sys
 from collections.abc import Sequence
+from dataclasses import replace
 from pathlib import Path
 
 from fsmsynth.check import check_table
@@ -20,12 +21,15 @@ from fsmsynth.cost import DEFAULT_WEIGHTS, CostWeights
 from fsmsynth.errors import FsmSynthError, OptionError, VerificationError
 from fsmsynth.files import write_all_if_changed, write_bytes_if_changed, write_if_changed
 from fsmsynth.formats import read_table
+from fsmsynth.formats.csv_table import SETTINGS
 from fsmsynth.formats.delays_toml import read_delays
 from fsmsynth.formats.weights_toml import read_weights
+from fsmsynth.invariants import check_invariants, constrain_outputs, kept_by_reduction
 from fsmsynth.logic.cover import METHODS as LOGIC_METHODS
 from fsmsynth.pipeline import UNUSED_POLICIES, Design, synthesize
 from fsmsynth.reduce import StateMinimization, minimize_states
 from fsmsynth.storage import STORAGES
+from fsmsynth.table import StateTable
 from fsmsynth.timing import timing
 from fsmsynth.version import __version__
 from fsmsynth.writers.dot import render, suffix_format, write_netlist_dot, write_state_diagram
@@ -93,6 +97,19 @@ def _list_arg(text: str) -> list[str]:
     return [part.strip() for part in text.split(",") if part.strip()]
 
 
+def _table_settings(command: argparse.ArgumentParser) -> None:
+    """Options that set a CSV table's settings (its settings row, when it has one)."""
+    group = command.add_argument_group("CSV table settings")
+    group.add_argument("--name", help="machine name (default: the file's name)")
+    group.add_argument("--reset", help="reset state (default: the first row's state)")
+    group.add_argument("--kind", choices=("mealy", "moore"), help="default mealy")
+
+
+def _read(args: argparse.Namespace) -> StateTable:
+    settings = {k: getattr(args, k) for k in SETTINGS if getattr(args, k) is not None}
+    return read_table(args.spec, settings or None)
+
+
 def _parser() -> argparse.ArgumentParser:
     parser = argparse.ArgumentParser(
         prog="fsmsynth",
@@ -102,6 +119,7 @@ def _parser() -> argparse.ArgumentParser:
 
     build = sub.add_parser("build", help="synthesize, verify and write Verilog and JSON")
     build.add_argument("spec", help="state table: .toml spec or .csv table")
+    _table_settings(build)
     build.add_argument("--storage", default="d", type=str,
                        help=f"flip-flop kind: {', '.join(sorted(STORAGES))}, best (cheapest per "
                             "bit), or one kind per state bit, bit 0 first (jk,d); default d")
@@ -141,6 +159,7 @@ def _parser() -> argparse.ArgumentParser:
 
     reduce = sub.add_parser("reduce", help="minimize the states and write the reduced table")
     reduce.add_argument("spec", help="state table: .toml spec or .csv table")
+    _table_settings(reduce)
     reduce.add_argument("-o", "--out", help="write the reduced spec here (default: print it)")
     reduce.add_argument("--keep-unreachable", action="store_true",
                         help="class every state, reachable from reset or not")
@@ -150,6 +169,7 @@ def _parser() -> argparse.ArgumentParser:
 
     tim = sub.add_parser("timing", help="clock period, hold check and critical path")
     tim.add_argument("spec", help="state table: .toml spec or .csv table")
+    _table_settings(tim)
     tim.add_argument("--storage", default="d", type=str, help="as for build (default d)")
     tim.add_argument("--encoding", default="binary", type=str, help="as for build")
     tim.add_argument("--logic", default="heuristic", choices=LOGIC_METHODS)
@@ -161,6 +181,7 @@ def _parser() -> argparse.ArgumentParser:
 
     diag = sub.add_parser("diagram", help="state diagram or netlist schematic (Graphviz DOT)")
     diag.add_argument("spec", help="state table: .toml spec or .csv table")
+    _table_settings(diag)
     diag.add_argument("--netlist", action="store_true",
                       help="draw the synthesized netlist instead of the state diagram")
     diag.add_argument("--storage", default="d", type=str, help="for --netlist (default d)")
@@ -170,12 +191,14 @@ def _parser() -> argparse.ArgumentParser:
 
     kmap = sub.add_parser("kmap", help="Karnaugh map of a flip-flop input or output")
     kmap.add_argument("spec", help="state table: .toml spec or .csv table")
+    _table_settings(kmap)
     kmap.add_argument("signal", nargs="?", help="signal (D0, J1, an output); default: all")
     kmap.add_argument("--storage", default="d", type=str, help="as for build (default d)")
     kmap.add_argument("--encoding", default="binary", type=str, help="as for build")
 
     comp = sub.add_parser("compare", help="cost of every storage kind and encoding, best first")
     comp.add_argument("spec", help="state table: .toml spec or .csv table")
+    _table_settings(comp)
     comp.add_argument("--storages", type=_list_arg, default=list(DEFAULT_STORAGES),
                       help=f"comma-separated (default {','.join(DEFAULT_STORAGES)})")
     comp.add_argument("--encodings", type=_list_arg, default=list(DEFAULT_ENCODINGS),
@@ -195,6 +218,7 @@ def _parser() -> argparse.ArgumentParser:
 
     check = sub.add_parser("check", help="validate a state table and report what it leaves open")
     check.add_argument("spec", help="state table: .toml spec or .csv table")
+    _table_settings(check)
     check.add_argument("--json", action="store_true", help="print a JSON report instead of text")
     return parser
 
@@ -232,11 +256,12 @@ def _report(design: Design) -> dict[str, object]:
         "flip_flops": [s.name for s in design.storages],
         "verified": bool(design.verification),
         "verification": design.verification.summary() if design.verification else None,
+        "invariants": design.invariants.summary() if design.invariants else None,
     }
 
 
 def _build(args: argparse.Namespace) -> int:
-    table = read_table(args.spec)
+    table = _read(args)
     design = synthesize(table, _storage_arg(args.storage), _encoding_arg(args.encoding),
                         unused=args.unused, minimize=not args.no_minimize, logic=args.logic,
                         weights=_weights_arg(args.weights), seed=args.seed, budget=args.budget,
@@ -295,6 +320,8 @@ def _build(args: argparse.Namespace) -> int:
     print()
     assert design.verification is not None
     print(design.verification.summary())
+    if design.invariants is not None:
+        print(design.invariants.summary())
     for path, changed in written.items():
         print(f"{'wrote' if changed else 'unchanged'} {path}")
     if not args.quiet:
@@ -304,12 +331,18 @@ def _build(args: argparse.Namespace) -> int:
 
 
 def _reduce(args: argparse.Namespace) -> int:
-    table = read_table(args.spec)
-    result = minimize_states(table, reachable_only=not args.keep_unreachable,
+    table = _read(args)
+    result = minimize_states(constrain_outputs(table), reachable_only=not args.keep_unreachable,
                              time_limit=args.time_limit)
-    text = write_spec(result.table, comment=(
-        f"{table.name}: reduced by fsmsynth from {Path(args.spec).name} "
-        f"({len(table.states)} -> {len(result.table.states)} states)"))
+    kept = kept_by_reduction(table, result.table)
+    dropped = [t for t in table.invariants if t not in kept]
+    comment = (f"{table.name}: reduced by fsmsynth from {Path(args.spec).name} "
+               f"({len(table.states)} -> {len(result.table.states)} states)")
+    if table.invariants:
+        comment += ("\nits don't-care outputs were first fixed where an invariant needs it"
+                    + "".join(f"\ninvariant not carried over (it names states): {t}"
+                              for t in dropped))
+    text = write_spec(replace(result.table, invariants=kept), comment=comment, guards=True)
     changed = write_if_changed(args.out, text) if args.out else False
     if args.json:
         print(json.dumps({
@@ -332,7 +365,7 @@ def _reduce(args: argparse.Namespace) -> int:
 
 
 def _timing(args: argparse.Namespace) -> int:
-    table = read_table(args.spec)
+    table = _read(args)
     design = synthesize(table, _storage_arg(args.storage), _encoding_arg(args.encoding),
                         logic=args.logic, clock_edge=args.clock_edge)
     report = timing(design, read_delays(args.delays) if args.delays else None)
@@ -358,7 +391,7 @@ def _timing(args: argparse.Namespace) -> int:
 
 
 def _compare(args: argparse.Namespace) -> int:
-    table = read_table(args.spec)
+    table = _read(args)
     options = dict(storages=args.storages, encodings=args.encodings, logic=args.logic,
                    weights=_weights_arg(args.weights))
     if args.jobs > 1:
@@ -397,7 +430,7 @@ def _compare(args: argparse.Namespace) -> int:
 
 
 def _diagram(args: argparse.Namespace) -> int:
-    table = read_table(args.spec)
+    table = _read(args)
     if args.netlist:
         design = synthesize(table, _storage_arg(args.storage), _encoding_arg(args.encoding))
         text = write_netlist_dot(design.netlist)
@@ -421,7 +454,7 @@ def _diagram(args: argparse.Namespace) -> int:
 
 
 def _kmap(args: argparse.Namespace) -> int:
-    table = read_table(args.spec)
+    table = _read(args)
     design = synthesize(table, _storage_arg(args.storage), _encoding_arg(args.encoding))
     functions = design.functions
     names = [f.name for f in functions.functions]
@@ -461,24 +494,33 @@ def _article(title: str) -> str:
 
 
 def _check(args: argparse.Namespace) -> int:
-    table = read_table(args.spec)
+    table = _read(args)
     report = check_table(table)
+    kept = check_invariants(table)
+    status = 0 if kept else 2
     if args.json:
+        broken = kept.violation
         print(json.dumps({
             "machine": table.name, "kind": table.kind, "states": list(table.states),
             "inputs": list(table.inputs), "outputs": list(table.outputs), "reset": table.reset,
             "unreachable": list(report.unreachable),
             "unspecified": {s: list(c) for s, c in report.unspecified},
             "dont_care_next": [list(x) for x in report.dont_care_next],
+            "invariants": {"hold": bool(kept), "conditions": list(table.invariants),
+                           "broken": None if broken is None else {
+                               "invariant": broken.invariant, "inputs": list(broken.inputs),
+                               "states": list(broken.states), "outputs": broken.outputs}},
         }, indent=2))
-        return 0
+        return status
     print(f"{args.spec}: valid {table.kind} table '{table.name}': {len(table.states)} states, "
           f"{len(table.inputs)} inputs, {len(table.outputs)} outputs, reset {table.reset!r}")
     for line in report.lines():
         print(f"  note: {line}")
     if report.completely_specified and not report.unreachable:
         print("  every state reachable, every transition specified")
-    return 0
+    if table.invariants:
+        print(f"  {kept.summary()}")
+    return status
 
 
 def main(argv: Sequence[str] | None = None) -> int:

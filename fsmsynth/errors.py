@@ -110,3 +110,15 @@ class VerificationError(FsmSynthError, RuntimeError):
     def __init__(self, message: str, result: object) -> None:
         super().__init__(message)
         self.result = result
+
+
+class InvariantError(FsmSynthError, ValueError):
+    """An invariant of the table that the table or the netlist breaks.
+
+    The outcome, with the shortest input sequence from reset that breaks it, is on
+    ``.result`` (an :class:`~fsmsynth.invariants.InvariantCheck`).
+    """
+
+    def __init__(self, message: str, result: object) -> None:
+        super().__init__(message)
+        self.result = result

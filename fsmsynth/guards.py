@@ -9,6 +9,9 @@ A guard is a Boolean condition over the machine's inputs, written as a designer 
 * ``~`` or ``!`` (not), ``&`` (and), ``^`` (exclusive or), ``|`` (or), parentheses, and the
   constants ``1`` and ``0``.
 
+Conditions (invariants, :func:`compile_condition`) may also name outputs and the present
+state: ``state == NAME``, ``state != NAME``, ``in(state, A, B)``.
+
 Precedence, tightest first: comparisons, ``~``/``!``, ``&``, ``^``, ``|``; so
 ``start & mode == 2`` means ``start & (mode == 2)``.  The word ``else`` is not a guard: it is
 handled by :meth:`fsmsynth.table.StateTable.from_transitions` (none of the state's earlier
@@ -34,7 +37,7 @@ from fsmsynth.logic.cube import Cube
 from fsmsynth.names import port_bits, ports_of
 
 _TOKEN = re.compile(r"\s*(?:(?P<name>[A-Za-z_][A-Za-z0-9_$]*)|(?P<number>[0-9]+)"
-                    r"|(?P<op>==|!=|<=|>=|[<>&|^~!()\[\]]))")
+                    r"|(?P<op>==|!=|<=|>=|[<>&|^~!()\[\],]))")
 _COMPARISONS = ("==", "!=", "<=", ">=", "<", ">")
 
 
@@ -76,11 +79,16 @@ def _tokens(text: str) -> list[_Token]:
 class _Parser:
     """Recursive descent over the grammar in the module docstring."""
 
-    def __init__(self, text: str, widths: Mapping[str, int], bits: Mapping[str, Sequence[Any]]):
+    def __init__(self, text: str, widths: Mapping[str, int], bits: Mapping[str, Sequence[Any]],
+                 states: Sequence[str] | None = None, current: str | None = None,
+                 role: str = "input"):
         self.tokens = _tokens(text)
         self.at = 0
         self.widths = widths
         self.bits = bits
+        self.states = states
+        self.current = current
+        self.role = role
 
     def peek(self) -> _Token:
         return self.tokens[self.at]
@@ -148,10 +156,16 @@ class _Parser:
         if token.kind != "name":
             raise GuardError(f"unexpected {_shown(token)} at column {token.column}",
                              token.column, token.text)
+        if self.states is not None and token.text not in self.widths:
+            if token.text == "state":
+                return self.state_is()
+            if token.text == "in" and self.peek().text == "(":
+                return self.state_in()
         if token.text not in self.widths:
             known = ", ".join(self.widths) or "none"
-            raise GuardError(f"unknown input {token.text!r} at column {token.column} (inputs: "
-                             f"{known})", token.column, token.text)
+            extra = "; or state == NAME, in(state, A, B)" if self.states is not None else ""
+            raise GuardError(f"unknown {self.role} {token.text!r} at column {token.column} "
+                             f"({self.role}s: {known}{extra})", token.column, token.text)
         width = self.widths[token.text]
         bits = self.bits[token.text]
         after = self.peek()
@@ -188,6 +202,44 @@ class _Parser:
                 f"condition: compare it ({token.text} == 1) or take a bit ({token.text}[0])",
                 token.column, token.text)
         return bits[0]
+
+
+    def state_name(self) -> str:
+        token = self.take()
+        if token.kind != "name":
+            raise GuardError(f"expected a state name at column {token.column}, found "
+                             f"{_shown(token)}", token.column, token.text)
+        assert self.states is not None
+        if token.text not in self.states:
+            raise GuardError(f"unknown state {token.text!r} at column {token.column} (states: "
+                             f"{', '.join(self.states)})", token.column, token.text)
+        return token.text
+
+    def state_is(self) -> Any:
+        """``state == NAME`` or ``state != NAME``: a constant, given the present state."""
+        op = self.take()
+        if op.kind != "op" or op.text not in ("==", "!="):
+            raise GuardError(f"expected '==' or '!=' after 'state' at column {op.column}, "
+                             f"found {_shown(op)}", op.column, op.text)
+        holds = (self.state_name() == self.current) == (op.text == "==")
+        return bdd.ONE if holds else bdd.ZERO
+
+    def state_in(self) -> Any:
+        """``in(state, A, B, ...)``: whether the present state is one of those named."""
+        self.expect("(")
+        first = self.take()
+        if first.text != "state" or first.kind != "name":
+            raise GuardError(f"expected 'state' at column {first.column}, found "
+                             f"{_shown(first)}", first.column, first.text)
+        names = []
+        while self.peek().text != ")":
+            self.expect(",")
+            names.append(self.state_name())
+        self.expect(")")
+        if not names:
+            raise GuardError(f"in(state) at column {first.column} names no state: "
+                             "write in(state, A, B)", first.column, "in(state)")
+        return bdd.ONE if self.current in names else bdd.ZERO
 
 
 def _shown(token: _Token) -> str:
@@ -239,6 +291,14 @@ def compile_guard(text: str, widths: Mapping[str, int],
         Naming the column and the text at fault.
     """
     return _Parser(text, widths, bits).parse()
+
+
+def compile_condition(text: str, widths: Mapping[str, int], bits: Mapping[str, Sequence[Any]],
+                      states: Sequence[str], current: str) -> Any:
+    """The BDD of a condition over signals (inputs and outputs) and the present state: the
+    guard grammar plus ``state == NAME``, ``state != NAME`` and ``in(state, A, B, ...)``,
+    which are constants once the present state is ``current``.  Used for invariants."""
+    return _Parser(text, widths, bits, states, current, role="signal").parse()
 
 
 def guard_text(cube: Cube, inputs: Sequence[str]) -> str:

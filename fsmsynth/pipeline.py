@@ -19,9 +19,10 @@ from fsmsynth.assign import (
 from fsmsynth.cost import DEFAULT_WEIGHTS, Cost, CostWeights, cost_of, logic_shape
 from fsmsynth.encode import Encoding, encode
 from fsmsynth.equations import Equation
-from fsmsynth.errors import OptionError, VerificationError
+from fsmsynth.errors import InvariantError, OptionError, VerificationError
 from fsmsynth.excite import LogicFunctions, excite
 from fsmsynth.frozen import FrozenMap
+from fsmsynth.invariants import InvariantCheck, check_invariants, constrain_outputs
 from fsmsynth.logic.cover import Cover, minimize_logic
 from fsmsynth.netlist import EDGES, Netlist, build_netlist
 from fsmsynth.reduce import StateMinimization, minimize_states
@@ -70,6 +71,9 @@ class Design:
     assignment:
         For a searched encoding (``"exhaustive"``, ``"anneal"``): what the search found and
         how it ended (evaluations, proven, interrupted); ``None`` otherwise.
+    invariants:
+        The proof that the table's invariants hold on the netlist (``None`` when the table
+        has none, or verification was skipped).
     """
 
     table: StateTable
@@ -84,6 +88,7 @@ class Design:
     cost: Cost
     verification: Verification | None
     assignment: SearchResult | None = None
+    invariants: InvariantCheck | None = None
 
     @cached_property
     def verilog(self) -> str:
@@ -197,6 +202,13 @@ def synthesize(table: StateTable, storage: StorageChoice = "d",
     VerificationError
         The netlist does not realize the table: a defect in fsmsynth, reported with its
         counterexample rather than returned as a wrong design.
+    InvariantError
+        The table breaks one of its invariants (whatever its don't cares become), or the
+        netlist does; with the shortest input sequence from reset that shows it.
+
+    The table's invariants (:mod:`fsmsynth.invariants`) are proven on the table first; then
+    the don't-care outputs that could break one are fixed before minimization
+    (:func:`fsmsynth.invariants.constrain_outputs`), and the netlist is proven to keep them.
 
     Examples
     --------
@@ -217,8 +229,13 @@ def synthesize(table: StateTable, storage: StorageChoice = "d",
         raise OptionError(f"unused codes {unused!r}: use one of {', '.join(UNUSED_POLICIES)}")
     if clock_edge not in EDGES:
         raise OptionError(f"clock edge {clock_edge!r}: use one of {', '.join(EDGES)}")
-    reduction = minimize_states(table) if minimize else None
-    work = reduction.table if reduction else table
+    if table.invariants:
+        on_table = check_invariants(table)
+        if not on_table:
+            raise InvariantError(f"{table.name}: {on_table.summary()}", on_table)
+    constrained = constrain_outputs(table)
+    reduction = minimize_states(constrained) if minimize else None
+    work = reduction.table if reduction else constrained
     if reduction and isinstance(encoding, Mapping):
         encoding = {s: c for s, c in encoding.items() if s in work.states or s not in table.states}
     search: SearchResult | None = None
@@ -348,4 +365,9 @@ def _proved(design: Design) -> Design:
     proof = verify(design.netlist, design.table, safe_unused=safe)
     if not proof:
         raise VerificationError(f"{design.table.name}: {proof.summary()}", proof)
-    return replace(design, verification=proof)
+    if not design.table.invariants:
+        return replace(design, verification=proof)
+    kept = check_invariants(design.table, design.netlist)
+    if not kept:
+        raise InvariantError(f"{design.table.name}: {kept.summary()}", kept)
+    return replace(design, verification=proof, invariants=kept)

@@ -42,6 +42,7 @@ class StateTable:
     reset: str
     rows: tuple[Row, ...]
     state_outputs: Mapping[str, str] = field(default_factory=lambda: FrozenMap({}))
+    invariants: tuple[str, ...] = ()
     _by_state: Mapping[str, tuple[int, ...]] = field(
         default_factory=lambda: FrozenMap({}), compare=False, repr=False)
 
@@ -57,6 +58,7 @@ class StateTable:
         kind: str = "mealy",
         states: Sequence[str] | None = None,
         state_outputs: Mapping[str, str] | None = None,
+        invariants: Sequence[str] | None = None,
     ) -> StateTable:
         """Build and validate a table.
 
@@ -79,6 +81,10 @@ class StateTable:
         state_outputs:
             Moore only: the output cube of each state (a state left out has all outputs
             don't care).
+        invariants:
+            Conditions that must hold in every reachable state under every input, over
+            inputs, outputs and the present state (:mod:`fsmsynth.invariants`); checked by
+            :func:`fsmsynth.invariants.check_invariants` and kept by synthesis.
 
         Raises
         ------
@@ -127,7 +133,9 @@ class StateTable:
         for i, row in enumerate(rows_t):
             by_state[row[0]].append(i)
         _check_conflicts(rows_t, outputs_t, by_state)
-        return cls(
+        if isinstance(invariants, (str, bytes)) or not isinstance(invariants, Sequence | None):
+            raise TableError(f"invariants must be a list of conditions, not {invariants!r}")
+        table = cls(
             name=name,
             kind=kind,  # type: ignore[arg-type]
             inputs=inputs_t,
@@ -136,8 +144,17 @@ class StateTable:
             reset=reset,
             rows=rows_t,
             state_outputs=FrozenMap(outs),
+            invariants=tuple(invariants or ()),
             _by_state=FrozenMap({s: tuple(ix) for s, ix in by_state.items()}),
         )
+        if table.invariants:
+            from fsmsynth.invariants import invariant_problem
+
+            for pos, text in enumerate(table.invariants, start=1):
+                problem = invariant_problem(text, table)
+                if problem:
+                    raise TableError(f"invariant {pos} ({text!r}): {problem}")
+        return table
 
     @classmethod
     def from_transitions(
@@ -172,7 +189,7 @@ class StateTable:
         names or dicts of name -> width; a vector ``mode`` of width 2 becomes the bits
         ``mode[1]``, ``mode[0]`` (most significant first in cubes, bit 0 least significant),
         which are also their Verilog bit-selects of one port ``[1:0] mode``.
-        ``invariants`` are refused for now.
+        ``invariants`` are as for :meth:`from_rows`.
 
         Raises
         ------
@@ -202,7 +219,8 @@ class StateTable:
 
     @classmethod
     def _derived(cls, base: StateTable, *, rows: Iterable[Row], states: Sequence[str],
-                 reset: str, state_outputs: Mapping[str, str] | None = None) -> StateTable:
+                 reset: str, state_outputs: Mapping[str, str] | None = None,
+                 invariants: tuple[str, ...] = ()) -> StateTable:
         """A table a stage built from a valid ``base`` (same names and kind), not re-checked.
 
         Used for results such as a reduced machine, whose rows are copies of validated rows
@@ -216,6 +234,7 @@ class StateTable:
         return cls(name=base.name, kind=base.kind, inputs=base.inputs, outputs=base.outputs,
                    states=tuple(states), reset=reset, rows=rows_t,
                    state_outputs=FrozenMap(dict(state_outputs or {})),
+                   invariants=invariants,
                    _by_state=FrozenMap({s: tuple(ix) for s, ix in by_state.items()}))
 
     def rows_of(self, state: str) -> tuple[Row, ...]:

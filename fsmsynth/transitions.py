@@ -91,9 +91,6 @@ def compile_transitions(*, name: str, kind: str, reset: str, inputs: object, out
 
     if otherwise not in OTHERWISE:
         raise TableError(f"otherwise {otherwise!r}: use 'dont-care' or 'stay'")
-    if invariants:
-        raise TableError("invariants are not supported yet: check them on the design with "
-                         "your own simulation for now")
     in_widths = _widths("inputs", inputs)
     out_widths = _widths("outputs", outputs)
     defaults = dict(default_outputs or {})
@@ -193,4 +190,4 @@ def compile_transitions(*, name: str, kind: str, reset: str, inputs: object, out
     out_names = [b for port_names in _bits(out_widths).values() for b in port_names]
     return StateTable.from_rows(name=name, kind=kind, inputs=names, outputs=out_names,
                                 rows=rows, reset=reset, states=states,
-                                state_outputs=moore_words)
+                                state_outputs=moore_words, invariants=invariants)

@@ -382,22 +382,35 @@ def _walk_symbolic(netlist: Netlist, table: StateTable) -> Verification:
         if not both.is_zero():
             return failed(node, both, _exclusive_name(netlist), "not both 1", "both 1")
         for nxt, points in here.next:
-            groups = [(points, 0)]
-            for b, vec in enumerate(nexts):
-                split = []
-                for group, next_code in groups:
-                    high, low = group & vec, group & ~vec
-                    if not high.is_zero():
-                        split.append((high, next_code | 1 << b))
-                    if not low.is_zero():
-                        split.append((low, next_code))
-                groups = split
-            for group, next_code in sorted(groups, key=lambda g: g[1]):
+            for group, next_code in split_by_code(points, nexts):
                 target = (nxt, next_code)
                 if target not in parent:
                     parent[target] = (node, word(group))
                     queue.append(target)
     return Verification(True, len(parent), 0, symbolic=True)
+
+
+def step_symbolic(netlist: Netlist, code: int, inputs: Mapping[str, Any]
+                  ) -> tuple[dict[str, Any], list[Any]]:
+    """Every net and each next-state bit as BDDs over the inputs, in state ``code``."""
+    env, nexts, _clash = _step(netlist, code, inputs, BDDONE)
+    return env, nexts
+
+
+def split_by_code(points: Any, next_bits: Sequence[Any]) -> list[tuple[Any, int]]:
+    """``points`` (a BDD over the inputs) split by the next code the bits ``next_bits``
+    compute there: ``(part, code)`` for each non-empty part, by code."""
+    groups = [(points, 0)]
+    for b, vec in enumerate(next_bits):
+        split = []
+        for group, next_code in groups:
+            high, low = group & vec, group & ~vec
+            if not high.is_zero():
+                split.append((high, next_code | 1 << b))
+            if not low.is_zero():
+                split.append((low, next_code))
+        groups = split
+    return sorted(groups, key=lambda g: g[1])
 
 
 def _bits(cube: Cube, n: int) -> str:

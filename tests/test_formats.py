@@ -7,9 +7,10 @@ from pathlib import Path
 
 import pytest
 from hypothesis import given, settings
+from hypothesis import strategies as st
 from strategies import state_tables
 
-from fsmsynth import SpecFileError
+from fsmsynth import SpecFileError, StateTable
 from fsmsynth.formats import parse_csv, parse_spec, read_table
 from fsmsynth.writers.spec_toml import write_spec
 
@@ -72,7 +73,7 @@ def test_unknown_key() -> None:
     text = GOOD.replace('kind = "mealy"', 'knd = "mealy"')
     assert error_of(text) == ("lamp.toml:3: unknown key 'knd': the keys are name, kind, inputs, "
                               "outputs, reset, states, rows, state_outputs, transition, "
-                              "default_outputs, otherwise")
+                              "default_outputs, otherwise, invariants")
 
 
 def test_guarded_form_keys_are_refused_beside_cube_rows() -> None:
@@ -134,7 +135,7 @@ def test_csv_error_reports_its_line() -> None:
 
 
 def test_csv_moore() -> None:
-    text = "# kind: moore\nstate,a,next,y\ns0,1,s1,0\ns0,0,s0,0\ns1,-,s0,1\n"
+    text = "kind\nmoore\nfrom,a,to,y\ns0,1,s1,0\ns0,0,s0,0\ns1,-,s0,1\n"
     t = parse_csv(text, "m.csv")
     assert t.kind == "moore" and dict(t.state_outputs) == {"s0": "0", "s1": "1"}
 
@@ -164,7 +165,7 @@ def test_inputs_must_be_strings() -> None:
 def test_csv_header_must_name_state_and_next() -> None:
     with pytest.raises(SpecFileError) as info:
         parse_csv("# a table\nstate,a,y\ns0,1,0\n", "t.csv")
-    assert str(info.value) == ("t.csv:2: the header must start with 'state' and have a 'next' "
+    assert str(info.value) == ("t.csv:2: the header must start with 'from' and have a 'to' "
                                "column between the inputs and the outputs")
 
 
@@ -179,3 +180,85 @@ def test_non_utf8_file(tmp_path: Path) -> None:
     bad.write_bytes(b"name = \"\xff\"\n")
     with pytest.raises(SpecFileError, match=r"bad\.toml: the file is not UTF-8 text$"):
         read_table(bad)
+
+
+# --- the spreadsheet look of CSV tables -----------------------------------------------------
+
+def test_csv_settings_row_and_vector_columns() -> None:
+    text = ("name,reset,kind\nsorter,wait,mealy\n\n"
+            "from,go,lane[1:0],to,gate[2:0]\n"
+            "wait,1,2,push,5\nwait,1,0-,wait,---\nwait,0,-,wait,0\npush,-,-,wait,1-0\n")
+    t = parse_csv(text, "s.csv")
+    assert (t.name, t.reset) == ("sorter", "wait")
+    assert t.inputs == ("go", "lane[1]", "lane[0]")
+    assert t.outputs == ("gate[2]", "gate[1]", "gate[0]")
+    assert t.rows[0] == ("wait", "110", "push", "101")
+    assert t.rows[1] == ("wait", "10-", "wait", "---") and t.rows[3][3] == "1-0"
+
+
+def test_csv_settings_from_the_caller_override_the_row() -> None:
+    text = "name,reset\nsorter,wait\nfrom,go,to,y\nwait,-,push,0\npush,-,wait,1\n"
+    t = parse_csv(text, "s.csv", settings={"reset": "push", "name": "other"})
+    assert (t.name, t.reset) == ("other", "push")
+
+
+@pytest.mark.parametrize(("text", "message"), [
+    ("# name: x\nfrom,a,to,y\ns,1,s,0\n",
+     "t.csv:1: settings go in a settings row, not a comment: a row 'name,reset' above the "
+     "table with their values under it (or --name and --reset on the command line)"),
+    ("name,colour\nx,red\nfrom,a,to,y\ns,1,s,0\n",
+     "t.csv:1: unknown setting 'colour': the settings are name, reset, kind"),
+    ("from,m[1:0],to,y\ns,4,s,0\n", "t.csv:2: column 'm[1:0]': value 4 does not fit 2 bits "
+                                    "(0 to 3)"),
+    ("from,m[1:0],to,y\ns,1x,s,0\n", "t.csv:2: column 'm[1:0]': '1x' is not a value: give a "
+                                     "number from 0 to 3, 2 of 0, 1 and -, or -"),
+    ("from,a,to,y\ns,2,s,0\n", "t.csv:2: column 'a': '2' is not a value: give one of 0, 1 "
+                               "or -"),
+    ("from,m[0:0],to,y\ns,1,s,0\n", "t.csv:1: column 'm[0:0]': a vector has at least 2 bits "
+                                    "(m[1:0]); write a bit as m"),
+])
+def test_csv_errors(text: str, message: str) -> None:
+    with pytest.raises(SpecFileError) as info:
+        parse_csv(text, "t.csv")
+    assert str(info.value) == message
+
+
+def test_cli_settings_for_csv_and_refused_for_toml(tmp_path: Path,
+                                                   capsys: pytest.CaptureFixture[str]) -> None:
+    from fsmsynth.cli import main
+    assert main(["check", str(EXAMPLES / "rail_crossing.csv"), "--reset", "closed",
+                 "--name", "level_crossing"]) == 0
+    assert "valid mealy table 'level_crossing'" in capsys.readouterr().out
+    assert main(["check", str(EXAMPLES / "glass_kiln.toml"), "--reset", "ready"]) == 2
+    assert capsys.readouterr().err == (
+        f"fsmsynth: error: --reset: these set a CSV table's settings; "
+        f"{EXAMPLES / 'glass_kiln.toml'} is a TOML spec, whose keys say them\n")
+
+
+# --- the spec writer's guarded form ----------------------------------------------------------
+
+@settings(max_examples=80, deadline=None)
+@given(st.one_of(state_tables(max_states=6), state_tables(max_states=6, dont_cares=False)))
+def test_guarded_writing_says_the_same_machine(table: StateTable) -> None:
+    """Written with guards and read back, every state gives the same next state and
+    outputs at every input point (checked point by point, by the table's own lookup)."""
+    import itertools
+    text = write_spec(table, guards=True)
+    back = parse_spec(text)
+    if "transition = [" not in text:
+        assert back == table  # it fell back to cube rows: exactly the same table
+        return
+    assert back.states == table.states and back.reset == table.reset
+    for state in table.states:
+        for bits in itertools.product("01", repeat=len(table.inputs)):
+            point = "".join(bits)
+            assert back.lookup(state, point) == table.lookup(state, point)
+
+
+def test_guarded_writing_keeps_vectors_and_invariants() -> None:
+    table = read_table(EXAMPLES / "grain_dryer.toml")
+    text = write_spec(table, guards=True)
+    assert "inputs = { start = 1, stop = 1, door_open = 1, flame_ok = 1, purge_done = 1, " \
+           "moisture = 3, grain_cool = 1 }" in text
+    assert '"~(burner & ~fan)",' in text and "auger = 3" in text
+    assert parse_spec(text).invariants == table.invariants

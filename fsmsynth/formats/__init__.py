@@ -2,8 +2,10 @@
 
 from __future__ import annotations
 
+from collections.abc import Mapping
 from pathlib import Path
 
+from fsmsynth.errors import OptionError
 from fsmsynth.formats.csv_table import parse_csv, read_csv
 from fsmsynth.formats.spec_toml import parse_spec, read_spec
 from fsmsynth.table import StateTable
@@ -11,8 +13,14 @@ from fsmsynth.table import StateTable
 __all__ = ["parse_csv", "parse_spec", "read_csv", "read_spec", "read_table"]
 
 
-def read_table(path: str | Path) -> StateTable:
-    """Read a ``.csv`` state table or a TOML spec (any other suffix)."""
+def read_table(path: str | Path, settings: Mapping[str, str] | None = None) -> StateTable:
+    """Read a ``.csv`` state table or a TOML spec (any other suffix).
+
+    ``settings`` (``name``, ``reset``, ``kind``) override a CSV table's settings row; a TOML
+    spec has keys of its own for them, so they are refused there."""
     if Path(path).suffix.lower() == ".csv":
-        return read_csv(path)
+        return read_csv(path, settings)
+    if settings:
+        raise OptionError(f"{', '.join('--' + k for k in settings)}: these set a CSV table's "
+                          f"settings; {path} is a TOML spec, whose keys say them")
     return read_spec(path)

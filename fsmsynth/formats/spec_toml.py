@@ -16,10 +16,11 @@ from fsmsynth.formats.text_files import read_text
 from fsmsynth.table import StateTable
 
 KEYS = ("name", "kind", "inputs", "outputs", "reset", "states", "rows", "state_outputs",
-        "transition", "default_outputs", "otherwise")
+        "transition", "default_outputs", "otherwise", "invariants")
 TRANSITION_KEYS = ("from", "when", "to", "set")
 """Fields of one ``[[transition]]`` entry: present state, guard, next state, outputs set."""
 _POSITION = re.compile(r"\(at line (\d+), column \d+\)")
+_INVARIANT = re.compile(r"invariant (\d+) \(")
 
 
 def read_spec(path: str | Path) -> StateTable:
@@ -61,6 +62,7 @@ def parse_spec(text: str, path: str = "<string>") -> StateTable:
             raise SpecFileError(f"missing key {key!r}", path=path)
     for key in ("name", "kind", "reset", "otherwise"):
         _expect(data, key, str, path, lines)
+    _expect_strings(data, "invariants", path, lines)
     if guarded:
         return _guarded(data, path, lines)
     for key in ("inputs", "outputs", "states"):
@@ -87,7 +89,8 @@ def parse_spec(text: str, path: str = "<string>") -> StateTable:
     try:
         return StateTable.from_rows(name=data["name"], kind=kind, inputs=data["inputs"],
                                     outputs=data["outputs"], reset=data["reset"], rows=rows,
-                                    states=data.get("states"), state_outputs=outs)
+                                    states=data.get("states"), state_outputs=outs,
+                                    invariants=data.get("invariants"))
     except TableError as exc:
         raise SpecFileError(exc.message, path=path, line=lines.locate(exc, data), state=exc.state,
                             row=exc.row, name=exc.name) from None
@@ -126,7 +129,7 @@ def _guarded(data: dict[str, Any], path: str, lines: _Lines) -> StateTable:
             inputs=data["inputs"], outputs=data["outputs"], transitions=transitions,
             default_outputs=data.get("default_outputs"),
             otherwise=data.get("otherwise", "dont-care"),
-            state_outputs=data.get("state_outputs"))
+            state_outputs=data.get("state_outputs"), invariants=data.get("invariants"))
     except TableError as exc:
         line = lines.entry("transition", exc.row) if exc.row is not None else \
             lines.locate(exc, data)
@@ -188,6 +191,34 @@ class _Lines:
                     return n
         return self.row(index, name, "{") if seen < 0 else None
 
+    def element(self, key: str, index: int) -> int | None:
+        """Line of string ``index`` of the top-level array of strings ``key``."""
+        start = self.key(key)
+        if start is None:
+            return None
+        offset = sum(len(line) + 1 for line in self.lines[:start - 1])
+        text, line, i, seen = self.text, start, offset + self.lines[start - 1].index("="), -1
+        while i < len(text):
+            ch = text[i]
+            if ch == "\n":
+                line += 1
+            elif ch == "#":
+                while i < len(text) and text[i] != "\n":
+                    i += 1
+                continue
+            elif ch in "\"'":
+                seen += 1
+                if seen == index:
+                    return line
+                end = _skip_string(text, i)
+                line += text[i:end].count("\n")
+                i = end
+                continue
+            elif ch == "]":
+                return start
+            i += 1
+        return start
+
     def row(self, index: int, key: str = "rows", opener: str = "[") -> int | None:
         """Line where element ``index`` of the top-level array ``key`` starts (elements are
         arrays, or inline tables with ``opener="{"``)."""
@@ -223,6 +254,9 @@ class _Lines:
 
     def locate(self, exc: TableError, data: dict[str, Any]) -> int | None:
         """Best line for a table error."""
+        found = _INVARIANT.match(exc.message)
+        if found:
+            return self.element("invariants", int(found.group(1)) - 1)
         if exc.row is not None:
             return self.row(exc.row)
         if exc.message.startswith("kind "):

@@ -3,7 +3,13 @@
 from __future__ import annotations
 
 import json
+from typing import Any
 
+from fsmsynth.guards import guard_text
+from fsmsynth.logic import bdd
+from fsmsynth.logic.cube import Cube
+from fsmsynth.logic.espresso import espresso_cover
+from fsmsynth.names import ports_of
 from fsmsynth.table import StateTable
 
 
@@ -16,9 +22,20 @@ def _array(items: tuple[str, ...] | list[str]) -> str:
     return "[" + ", ".join(_quote(i) for i in items) + "]"
 
 
-def write_spec(table: StateTable, *, comment: str = "") -> str:
-    """TOML text that :func:`fsmsynth.formats.spec_toml.parse_spec` reads back to ``table``."""
+def write_spec(table: StateTable, *, comment: str = "", guards: bool = False) -> str:
+    """TOML text that :func:`fsmsynth.formats.spec_toml.parse_spec` reads back to ``table``.
+
+    With ``guards``, the transitions are written as guarded entries (vector ports whole, one
+    entry per next state and output value, ``else`` for the rest of a state) when that says
+    the same machine: when every state has rows, every row names its next state and no
+    two rows of a state overlap.  Otherwise, and by default, the cube rows are written as
+    they are, which reads back to an equal table.
+    """
     out = [f"# {line}" if line else "#" for line in comment.splitlines()]
+    if guards:
+        written = _guarded(table)
+        if written is not None:
+            return "\n".join(out + written) + "\n"
     out += [
         f"name = {_quote(table.name)}",
         f"kind = {_quote(table.kind)}",
@@ -37,8 +54,101 @@ def write_spec(table: StateTable, *, comment: str = "") -> str:
             cells.append(outs or "")
         out.append(f"  {_array(cells)},")
     out.append("]")
+    out += _invariants(table)
     if table.kind == "moore":
         out += ["", "[state_outputs]"]
         out += [f"{_quote(s)} = {_quote(table.state_outputs[s])}"
                 for s in table.states if s in table.state_outputs]
     return "\n".join(out) + "\n"
+
+
+def _invariants(table: StateTable) -> list[str]:
+    if not table.invariants:
+        return []
+    return ["", "invariants = ["] + [f"  {_quote(t)}," for t in table.invariants] + ["]"]
+
+
+def _ports(names: tuple[str, ...]) -> str:
+    ports = ports_of(names)
+    if all(width is None for _port, width in ports):
+        return _array(names)
+    return "{ " + ", ".join(f"{_key(p)} = {w or 1}" for p, w in ports) + " }"
+
+
+def _key(name: str) -> str:
+    bare = name.replace("_", "a").replace("-", "a").isalnum() and name.isascii()
+    return name if bare else _quote(name)
+
+
+def _values(word: str, names: tuple[str, ...]) -> str:
+    """``{ fill = 1, speed = 5 }``: each output port the word specifies (ints where whole)."""
+    parts, at = [], 0
+    for port, width in ports_of(names):
+        chars = word[at:at + (width or 1)]
+        at += width or 1
+        if set(chars) == {"-"}:
+            continue
+        value = str(int(chars, 2)) if "-" not in chars else _quote(chars)
+        parts.append(f"{_key(port)} = {value}")
+    return "{ " + ", ".join(parts) + " }" if parts else "{}"
+
+
+def _guard(points: Any, earlier: Any, var: list[Any], inputs: tuple[str, ...]) -> str:
+    """A short guard for ``points`` (a BDD): a sum of products by Espresso, free to include
+    points that ``earlier`` transitions of the state take first, never any other point."""
+    off = ~(points | earlier)
+    if off.is_zero():
+        return "1"
+    on_cubes, off_cubes = bdd.cubes_of(points, var), bdd.cubes_of(off, var)
+    (terms,) = espresso_cover(len(inputs), [on_cubes], [off_cubes])
+    texts = [guard_text(c, inputs) for c in terms]
+    return " | ".join(f"({t})" if "&" in t and len(texts) > 1 else t for t in texts)
+
+
+def _guarded(table: StateTable) -> list[str] | None:
+    """The guarded-transition form of ``table``, or ``None`` when it cannot say the same."""
+    n = len(table.inputs)
+    var = bdd.variables(n)
+    entries: list[str] = []
+    if any(not table.rows_of(state) for state in table.states):
+        return None  # a state without rows would not be declared, or would move
+    for state in table.states:
+        groups: dict[tuple[str, str], object] = {}
+        covered = bdd.ZERO
+        for _s, cube, nxt, outs in table.rows_of(state):
+            points = bdd.cube_bdd(Cube.from_string(cube), var)
+            if nxt is None or not (points & covered).is_zero():
+                return None
+            covered |= points
+            key = (nxt, outs or "")
+            groups[key] = groups.get(key, bdd.ZERO) | points
+        earlier = bdd.ZERO
+        for k, ((nxt, outs), points) in enumerate(groups.items()):
+            last = k == len(groups) - 1
+            if last and covered.is_one():
+                when = "else"
+            else:
+                when = _guard(points, earlier, var, table.inputs)
+            earlier |= points
+            fields = f"from = {_quote(state)}, when = {_quote(when)}, to = {_quote(nxt)}"
+            if table.kind == "mealy":
+                fields += f", set = {_values(outs, table.outputs)}"
+            entries.append(f"  {{ {fields} }},")
+    out = [
+        f"name = {_quote(table.name)}",
+        f"kind = {_quote(table.kind)}",
+        f"inputs = {_ports(table.inputs)}",
+        f"outputs = {_ports(table.outputs)}",
+        f"reset = {_quote(table.reset)}",
+        "",
+        "# from a state, when a guard holds, to the next state, setting outputs (tried in order)",
+        "transition = [",
+        *entries,
+        "]",
+    ]
+    out += _invariants(table)
+    if table.kind == "moore":
+        out += ["", "[state_outputs]"]
+        out += [f"{_quote(s)} = {_values(table.output_cube_of(s), table.outputs)}"
+                for s in table.states]
+    return out
