@@ -21,6 +21,7 @@ from fsmsynth.cost import DEFAULT_WEIGHTS, CostWeights
 from fsmsynth.errors import FsmSynthError, OptionError, VerificationError
 from fsmsynth.files import write_all_if_changed, write_bytes_if_changed, write_if_changed
 from fsmsynth.formats import read_table
+from fsmsynth.formats.cells_toml import read_cells
 from fsmsynth.formats.csv_table import SETTINGS
 from fsmsynth.formats.delays_toml import read_delays
 from fsmsynth.formats.weights_toml import read_weights
@@ -30,6 +31,7 @@ from fsmsynth.pipeline import UNUSED_POLICIES, Design, synthesize
 from fsmsynth.reduce import StateMinimization, minimize_states
 from fsmsynth.storage import STORAGES
 from fsmsynth.table import StateTable
+from fsmsynth.targets import Target
 from fsmsynth.timing import timing
 from fsmsynth.version import __version__
 from fsmsynth.writers.dot import render, suffix_format, write_netlist_dot, write_state_diagram
@@ -65,6 +67,19 @@ def _storage_arg(text: str) -> str | list[str]:
     if "," in text:
         return [part.strip() for part in text.split(",")]
     return text
+
+
+def _target_arg(text: str) -> str | Target:
+    """A built-in target's name, or a cell library file (``.toml``)."""
+    return read_cells(text) if text.lower().endswith(".toml") else text
+
+
+def _target_options(command: argparse.ArgumentParser) -> None:
+    command.add_argument("--target", default="two-level",
+                         help="what the logic is built from: two-level (default), nand2, "
+                              "gates2, cmos, lut4, lut6, pterms:N, or a cell library .toml")
+    command.add_argument("--map-for", default="area", choices=("area", "delay"),
+                         help="what technology mapping minimizes (default area)")
 
 
 def _weights_arg(path: str | None) -> CostWeights:
@@ -120,6 +135,7 @@ def _parser() -> argparse.ArgumentParser:
     build = sub.add_parser("build", help="synthesize, verify and write Verilog and JSON")
     build.add_argument("spec", help="state table: .toml spec or .csv table")
     _table_settings(build)
+    _target_options(build)
     build.add_argument("--storage", default="d", type=str,
                        help=f"flip-flop kind: {', '.join(sorted(STORAGES))}, best (cheapest per "
                             "bit), or one kind per state bit, bit 0 first (jk,d); default d")
@@ -199,6 +215,7 @@ def _parser() -> argparse.ArgumentParser:
     comp = sub.add_parser("compare", help="cost of every storage kind and encoding, best first")
     comp.add_argument("spec", help="state table: .toml spec or .csv table")
     _table_settings(comp)
+    _target_options(comp)
     comp.add_argument("--storages", type=_list_arg, default=list(DEFAULT_STORAGES),
                       help=f"comma-separated (default {','.join(DEFAULT_STORAGES)})")
     comp.add_argument("--encodings", type=_list_arg, default=list(DEFAULT_ENCODINGS),
@@ -221,6 +238,31 @@ def _parser() -> argparse.ArgumentParser:
     _table_settings(check)
     check.add_argument("--json", action="store_true", help="print a JSON report instead of text")
     return parser
+
+
+def _target_lines(design: Design) -> list[str]:
+    """What the design became on its target."""
+    m, c = design.mapping, design.cost
+    assert m is not None
+    two = design.two_level_cost
+    lines = [f"On target {m.target}: total {c.total:g} (logic {c.logic_area:g} + flip-flops "
+             f"{c.flip_flop_area:g}), depth {c.depth}"
+             + (f"; two-level total was {two.total:g}" if two else ""),
+             "  cells " + ", ".join(f"{k} {n}" for k, n in c.cells.items())]
+    for kind, entry in c.storage.items():
+        built = entry["built_from"]
+        how = "own cells" if built == kind else (
+            f"built from {str(built).upper()} flip-flops plus logic of area "
+            f"{entry['conversion_area']}")
+        lines.append(f"  {kind.upper()} flip-flops: {entry['flip_flops']}, area "
+                     f"{entry['flip_flop_area']}, {how}")
+    if m.fit is not None:
+        lines += ["  " + line for line in m.fit.lines()]
+    if m.target in ("nand2", "gates2", "cmos", "lut4", "lut6") or m.target.startswith(
+            "pterms:"):
+        lines.append("  (built-in target: illustrative areas and delays; give a cell library "
+                     "file with your vendor's figures)")
+    return lines
 
 
 def _minimization_lines(m: StateMinimization, before: int) -> list[str]:
@@ -266,7 +308,8 @@ def _build(args: argparse.Namespace) -> int:
                         unused=args.unused, minimize=not args.no_minimize, logic=args.logic,
                         weights=_weights_arg(args.weights), seed=args.seed, budget=args.budget,
                         width=args.width, clock_edge=args.clock_edge, jobs=args.jobs,
-                        time_limit=args.time_limit, force=args.force)
+                        time_limit=args.time_limit, force=args.force,
+                        target=_target_arg(args.target), map_for=args.map_for)
     out = Path(args.out)
     files = {out / f"{table.name}.v": design.verilog, out / f"{table.name}.json": design.json}
     if args.testbench:
@@ -306,9 +349,9 @@ def _build(args: argparse.Namespace) -> int:
     print("Equations:")
     for eq in design.equations.values():
         print(f"  {eq}")
-    c = design.cost
+    c = design.two_level_cost or design.cost  # the two-level figures, on any target
     print()
-    print("Cost:")
+    print("Cost (two-level):" if design.mapping is not None else "Cost:")
     print(f"  product terms {c.product_terms}, literals {c.literals}")
     print("  gates " + ", ".join(f"{k.upper()} {n}" for k, n in c.gates.items())
           + f"; gate inputs {c.gate_inputs}")
@@ -317,6 +360,10 @@ def _build(args: argparse.Namespace) -> int:
     proof = (", proven minimal sums of products" if design.cover.proven
              else "" if design.cover.method == "heuristic" else ", time limit: not proven minimal")
     print(f"  two-level minimization: {design.cover.method}{proof}")
+    if design.mapping is not None:
+        print()
+        for line in _target_lines(design):
+            print(line)
     print()
     assert design.verification is not None
     print(design.verification.summary())
@@ -393,22 +440,37 @@ def _timing(args: argparse.Namespace) -> int:
 def _compare(args: argparse.Namespace) -> int:
     table = _read(args)
     options = dict(storages=args.storages, encodings=args.encodings, logic=args.logic,
-                   weights=_weights_arg(args.weights))
+                   weights=_weights_arg(args.weights), target=_target_arg(args.target),
+                   map_for=args.map_for)
     if args.jobs > 1:
         from concurrent.futures import ProcessPoolExecutor
         with ProcessPoolExecutor(max_workers=args.jobs) as pool:
             result = compare(table, executor=pool, **options)
     else:
         result = compare(table, **options)
-    header = ["rank", "storage", "encoding", "flip_flops", "total", "gate_inputs",
-              "product_terms", "literals", "not", "and", "or", "verified"]
+    if result.target == "two-level":
+        header = ["rank", "storage", "encoding", "flip_flops", "total", "gate_inputs",
+                  "product_terms", "literals", "not", "and", "or", "verified"]
+    else:
+        header = ["rank", "storage", "encoding", "flip_flops", "total", "logic_area",
+                  "flip_flop_area", "conversion_area", "depth", "cells", "verified"]
     records = []
     for rank, row in enumerate(result.rows, start=1):
         gates = row.cost["gates"]
         assert isinstance(gates, dict)
+        if result.target == "two-level":
+            records.append([rank, row.storage, row.encoding, " ".join(row.kinds), row.total,
+                            row.cost["gate_inputs"], row.cost["product_terms"],
+                            row.cost["literals"], gates.get("not", 0), gates.get("and", 0),
+                            gates.get("or", 0), row.verified])
+            continue
+        cells = row.cost["cells"]
+        storage = row.cost["storage"]
+        assert isinstance(cells, dict) and isinstance(storage, dict)
+        conversion = round(sum(float(v["conversion_area"]) for v in storage.values()), 4)
         records.append([rank, row.storage, row.encoding, " ".join(row.kinds), row.total,
-                        row.cost["gate_inputs"], row.cost["product_terms"], row.cost["literals"],
-                        gates.get("not", 0), gates.get("and", 0), gates.get("or", 0),
+                        row.cost["logic_area"], row.cost["flip_flop_area"], conversion,
+                        row.cost["depth"], " ".join(f"{k}:{n}" for k, n in cells.items()),
                         row.verified])
     if args.json:
         print(json.dumps({"machine": result.machine,
@@ -423,7 +485,8 @@ def _compare(args: argparse.Namespace) -> int:
         return 0
     texts = [[str(x if not isinstance(x, float) else f"{x:g}") for x in r] for r in records]
     widths = [max(len(h), *(len(t[i]) for t in texts)) for i, h in enumerate(header)]
-    print(f"{result.machine}: {len(records)} designs, cheapest first")
+    on = "" if result.target == "two-level" else f" on {result.target}"
+    print(f"{result.machine}: {len(records)} designs{on}, cheapest first")
     for line in [header, *texts]:
         print("  ".join(cell.ljust(w) for cell, w in zip(line, widths)).rstrip())
     return 0

@@ -12,6 +12,7 @@ from fsmsynth.formats.spec_toml import parse_spec
 from fsmsynth.pipeline import synthesize
 from fsmsynth.storage import STORAGES
 from fsmsynth.table import StateTable
+from fsmsynth.targets import Target, target_named
 from fsmsynth.writers.spec_toml import write_spec
 
 DEFAULT_ENCODINGS = ("binary", "gray", "one-hot")
@@ -46,6 +47,7 @@ class Comparison:
 
     machine: str
     rows: tuple[ComparisonRow, ...]
+    target: str = "two-level"
 
     @property
     def best(self) -> ComparisonRow:
@@ -54,10 +56,11 @@ class Comparison:
 
 
 def _one(spec: str, storage: str, encoding: str, weights: CostWeights, logic: str,
-         minimize: bool, unused: str) -> ComparisonRow:
+         minimize: bool, unused: str, target: str | Target = "two-level",
+         map_for: str = "area") -> ComparisonRow:
     """Synthesize one combination; takes spec text so that it pickles for process pools."""
     design = synthesize(parse_spec(spec), storage, encoding, weights=weights, logic=logic,
-                        minimize=minimize, unused=unused)
+                        minimize=minimize, unused=unused, target=target, map_for=map_for)
     return ComparisonRow(storage=storage, encoding=encoding,
                          kinds=tuple(s.name for s in design.storages),
                          cost=design.cost.as_dict(), verified=bool(design.verification),
@@ -67,7 +70,8 @@ def _one(spec: str, storage: str, encoding: str, weights: CostWeights, logic: st
 def compare(table: StateTable, storages: Sequence[str] = DEFAULT_STORAGES,
             encodings: Sequence[str] = DEFAULT_ENCODINGS, *, executor: Executor | None = None,
             weights: CostWeights = DEFAULT_WEIGHTS, logic: str = "heuristic",
-            minimize: bool = True, unused: str = "dont-care") -> Comparison:
+            minimize: bool = True, unused: str = "dont-care",
+            target: str | Target = "two-level", map_for: str = "area") -> Comparison:
     """Synthesize and verify every (storage, encoding) pair and rank them by ``cost.total``.
 
     Parameters
@@ -77,22 +81,25 @@ def compare(table: StateTable, storages: Sequence[str] = DEFAULT_STORAGES,
     executor:
         A :class:`concurrent.futures.Executor` (a process pool, or a cluster executor with
         that interface) to run the designs on; by default they run here, one by one.
-    weights, logic, minimize, unused:
-        As for :func:`fsmsynth.synthesize`.
+    weights, logic, minimize, unused, target, map_for:
+        As for :func:`fsmsynth.synthesize`; with a target, designs rank by its area and
+        each row's ``cost`` has the target's figures (cells, areas, depth, storage).
     """
     if not storages or not encodings:
         raise OptionError("compare: give at least one storage kind and one encoding")
     spec = write_spec(table)
+    target = target_named(target)
     # "best" is the cheapest of every single kind and the per-bit choice: run each of those
     # once, shared with the single kinds asked for, instead of again inside synthesize().
     kinds = [k for k in STORAGES if k in storages or "best" in storages]
     jobs = [(s, e) for s in [*kinds, *(["per-bit"] if "best" in storages else [])]
             for e in encodings]
     if executor is None:
-        done = [_one(spec, s, e, weights, logic, minimize, unused) for s, e in jobs]
+        done = [_one(spec, s, e, weights, logic, minimize, unused, target, map_for)
+                for s, e in jobs]
     else:
-        futures = [executor.submit(_one, spec, s, e, weights, logic, minimize, unused)
-                   for s, e in jobs]
+        futures = [executor.submit(_one, spec, s, e, weights, logic, minimize, unused, target,
+                                   map_for) for s, e in jobs]
         done = [f.result() for f in futures]
     by_job = dict(zip(jobs, done))
     rows = []
@@ -106,4 +113,4 @@ def compare(table: StateTable, storages: Sequence[str] = DEFAULT_STORAGES,
             rows.append(replace(cheapest, storage="best"))
     ranked = sorted(rows, key=lambda r: (r.total, r.cost["gate_inputs"], r.storage,
                                          r.encoding))
-    return Comparison(machine=table.name, rows=tuple(ranked))
+    return Comparison(machine=table.name, rows=tuple(ranked), target=target.name)

@@ -93,7 +93,13 @@ class Cost:
     flip_flops:
         Flip-flop count by storage kind.
     total:
-        The ranking number (see the module docstring).
+        The ranking number (see the module docstring); on a target, its area: cells (or
+        LUTs, or macrocells) plus flip-flops.
+    target, cells, logic_area, flip_flop_area, depth, storage:
+        On a target (:mod:`fsmsynth.targets`): its name, cells by name, the areas, the
+        most cells on a path, and per storage kind the flip-flops, what they are built
+        from and the area of their conversion logic.  The other fields keep the two-level
+        figures of the same covers.
     """
 
     product_terms: int
@@ -102,10 +108,16 @@ class Cost:
     gate_inputs: int
     flip_flops: Mapping[str, int]
     total: float
+    target: str = "two-level"
+    cells: Mapping[str, int] = field(default_factory=lambda: FrozenMap({}))
+    logic_area: float = 0.0
+    flip_flop_area: float = 0.0
+    depth: int = 0
+    storage: Mapping[str, Mapping[str, object]] = field(default_factory=lambda: FrozenMap({}))
 
     def as_dict(self) -> dict[str, object]:
-        """Plain data for JSON."""
-        return {
+        """Plain data for JSON (with the target's figures when there is a target)."""
+        data: dict[str, object] = {
             "product_terms": self.product_terms,
             "literals": self.literals,
             "gates": dict(self.gates),
@@ -113,6 +125,12 @@ class Cost:
             "flip_flops": dict(self.flip_flops),
             "total": self.total,
         }
+        if self.target != "two-level":
+            data.update(target=self.target, cells=dict(self.cells),
+                        logic_area=self.logic_area, flip_flop_area=self.flip_flop_area,
+                        depth=self.depth,
+                        storage={k: dict(v) for k, v in self.storage.items()})
+        return data
 
 
 @dataclass(frozen=True, slots=True)

@@ -275,7 +275,7 @@ def _greater_than(bits: Sequence[Any], value: int) -> Any:
 
 
 def compile_guard(text: str, widths: Mapping[str, int],
-                  bits: Mapping[str, Sequence[Any]]) -> Any:
+                  bits: Mapping[str, Sequence[Any]], *, role: str = "input") -> Any:
     """The BDD of guard ``text``.
 
     Parameters
@@ -288,9 +288,10 @@ def compile_guard(text: str, widths: Mapping[str, int],
     Raises
     ------
     GuardError
-        Naming the column and the text at fault.
+        Naming the column and the text at fault (an unknown name is called an unknown
+        ``role``: ``"input"``, or ``"pin"`` for a cell's function).
     """
-    return _Parser(text, widths, bits).parse()
+    return _Parser(text, widths, bits, role=role).parse()
 
 
 def compile_condition(text: str, widths: Mapping[str, int], bits: Mapping[str, Sequence[Any]],

@@ -18,24 +18,39 @@ from fsmsynth.names import RESERVED_PREFIX
 from fsmsynth.storage import Storage
 
 EDGES = ("rising", "falling")
-GATE_FUNCTIONS = ("not", "buf", "and", "or", "nand", "nor", "xor", "xnor", "const0", "const1")
+GATE_FUNCTIONS = ("not", "buf", "and", "or", "nand", "nor", "xor", "xnor", "const0", "const1",
+                  "lut")
 _ARITY = {"not": 1, "buf": 1, "const0": 0, "const1": 0}
 """Gates of fixed input count; the others take one or more (as Verilog's gate primitives)."""
 
 
 @dataclass(frozen=True, slots=True)
 class Gate:
-    """A logic gate: ``output = kind(inputs)``."""
+    """A logic gate: ``output = kind(inputs)``.
+
+    ``kind="lut"`` is any function of its inputs, given by ``table`` (bit ``m`` is the
+    output when input ``i`` is ``m >> i & 1``): a look-up table, or a library cell that is
+    no Verilog primitive.  ``cell`` names the target's cell the gate is (``"AOI21"``,
+    ``"LUT4"``), empty for the two-level circuit.
+    """
 
     name: str
     kind: str
     inputs: tuple[str, ...]
     output: str
+    cell: str = ""
+    table: int | None = None
 
     def __post_init__(self) -> None:
         if self.kind not in GATE_FUNCTIONS:
             raise NetlistError(f"gate {self.name!r}: unknown kind {self.kind!r}; use one of "
                                f"{', '.join(GATE_FUNCTIONS)}", cell=self.name)
+        if (self.kind == "lut") != (self.table is not None):
+            raise NetlistError(f"gate {self.name!r}: a truth table belongs to kind 'lut' "
+                               "and to no other", cell=self.name)
+        if self.table is not None and not 0 <= self.table < 1 << (1 << len(self.inputs)):
+            raise NetlistError(f"gate {self.name!r}: truth table {self.table:#x} is wider "
+                               f"than {len(self.inputs)} inputs allow", cell=self.name)
         arity = _ARITY.get(self.kind)
         if arity is not None and len(self.inputs) != arity:
             raise NetlistError(f"gate {self.name!r} ({self.kind}) has {len(self.inputs)} "

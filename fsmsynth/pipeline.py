@@ -24,10 +24,14 @@ from fsmsynth.excite import LogicFunctions, excite
 from fsmsynth.frozen import FrozenMap
 from fsmsynth.invariants import InvariantCheck, check_invariants, constrain_outputs
 from fsmsynth.logic.cover import Cover, minimize_logic
+from fsmsynth.map.expr import Expr
+from fsmsynth.map.factor import factor
+from fsmsynth.map.realize import Mapping_, map_design
 from fsmsynth.netlist import EDGES, Netlist, build_netlist
 from fsmsynth.reduce import StateMinimization, minimize_states
 from fsmsynth.storage import STORAGES, Storage, storage_named
 from fsmsynth.table import StateTable
+from fsmsynth.targets import Target, target_named
 from fsmsynth.verify import Verification, verify
 from fsmsynth.writers.json_netlist import write_json_netlist
 from fsmsynth.writers.verilog import write_verilog
@@ -74,6 +78,10 @@ class Design:
     invariants:
         The proof that the table's invariants hold on the netlist (``None`` when the table
         has none, or verification was skipped).
+    mapping:
+        On a target other than ``"two-level"``: the mapped design (cells, areas, depth,
+        storage report, array fit); ``netlist`` and ``cost`` are then the mapped ones, and
+        ``two_level_cost`` keeps the two-level figures.
     """
 
     table: StateTable
@@ -89,6 +97,15 @@ class Design:
     verification: Verification | None
     assignment: SearchResult | None = None
     invariants: InvariantCheck | None = None
+    mapping: Mapping_ | None = None
+    two_level_cost: Cost | None = None
+
+    @cached_property
+    def factored(self) -> dict[str, Expr]:
+        """Each signal's cover in factored (multi-level) form (:mod:`fsmsynth.map.factor`),
+        over ``cover.variables``; ``expr.text(design.cover.variables)`` prints it and
+        ``expr.to_sympy(design.cover.variables)`` converts it."""
+        return {name: factor(terms) for name, terms in zip(self.cover.names, self.cover.terms)}
 
     @cached_property
     def verilog(self) -> str:
@@ -124,8 +141,12 @@ class Design:
         if storage == "mixed":
             storage += " (" + ", ".join(f"Q{b} {s.name}" for b, s in enumerate(self.storages)) + ")"
         edges = sorted({ff.edge for ff in self.netlist.flip_flops}) or ["rising"]
+        target = ""
+        if self.mapping is not None:
+            target = f"; target: {self.mapping.target}"
         return (f"storage: {storage}; clock edge: {', '.join(edges)}; "
-                f"encoding: {self.encoding.method} ({codes}); unused codes: {self.unused}\n"
+                f"encoding: {self.encoding.method} ({codes}); unused codes: {self.unused}"
+                f"{target}\n"
                 "Caution: synchronise asynchronous inputs, and verify timing in the target "
                 "technology.")
 
@@ -139,7 +160,8 @@ def synthesize(table: StateTable, storage: StorageChoice = "d",
                logic: str = "heuristic", minimize: bool = True, check: bool = True,
                seed: int = 0, budget: int | None = None, width: int | None = None,
                clock_edge: str = "rising", jobs: int = 1, time_limit: float | None = None,
-               force: bool = False) -> Design:
+               force: bool = False, target: str | Target = "two-level",
+               map_for: str = "area") -> Design:
     """Synthesize ``table`` into equations and a netlist, and prove the result.
 
     Parameters
@@ -192,6 +214,14 @@ def synthesize(table: StateTable, storage: StorageChoice = "d",
     width:
         Code width in bits for ``"adjacency"``, ``"exhaustive"`` and ``"anneal"`` (default:
         the fewest that fit); wider codes often simplify the logic.
+    target:
+        What the design is built from (:mod:`fsmsynth.targets`): ``"two-level"`` (default),
+        ``"nand2"``, ``"gates2"``, ``"cmos"``, ``"lut4"``, ``"lut6"``, ``"pterms:N"`` or a
+        :class:`~fsmsynth.targets.Target` (a cell library read from a file).  The covers
+        are factored and mapped onto it, the mapped netlist is verified, and ``cost.total``
+        is the target's area; ``"best"`` storage then picks by that area.
+    map_for:
+        ``"area"`` (default) or ``"delay"``: what technology mapping minimizes.
 
     Raises
     ------
@@ -246,19 +276,22 @@ def synthesize(table: StateTable, storage: StorageChoice = "d",
         if width is not None:
             raise OptionError("width applies to adjacency, exhaustive and anneal encodings")
         codes = encode(work, encoding)
+    on = target_named(target)
+    if map_for not in ("area", "delay"):
+        raise OptionError(f"map for {map_for!r}: use 'area' or 'delay'")
     if storage == "best":
         candidates = [(k,) * codes.width for k in STORAGES.values()]
         candidates.append(_cheapest_per_bit(work, codes, unused, weights, logic))
-        designs = [_build(table, reduction, work, codes, c, unused, weights, logic)
-                   for c in dict.fromkeys(candidates)]
+        designs = [_mapped(_build(table, reduction, work, codes, c, unused, weights, logic),
+                           on, map_for) for c in dict.fromkeys(candidates)]
         chosen = min(designs, key=lambda d: (d.cost.total, d.cost.gate_inputs))
     elif storage == "per-bit":
-        chosen = _build(table, reduction, work, codes,
-                        _cheapest_per_bit(work, codes, unused, weights, logic), unused, weights,
-                        logic)
+        chosen = _mapped(_build(table, reduction, work, codes,
+                                _cheapest_per_bit(work, codes, unused, weights, logic), unused,
+                                weights, logic), on, map_for)
     else:
-        chosen = _build(table, reduction, work, codes, _per_bit(storage, codes.width), unused,
-                        weights, logic)
+        chosen = _mapped(_build(table, reduction, work, codes, _per_bit(storage, codes.width),
+                                unused, weights, logic), on, map_for)
     if clock_edge != "rising":
         chosen = replace(chosen, netlist=replace(chosen.netlist, flip_flops=tuple(
             replace(ff, edge=clock_edge) for ff in chosen.netlist.flip_flops)))
@@ -357,6 +390,21 @@ def _build(table: StateTable, reduction: StateMinimization | None, work: StateTa
     return Design(table=table, minimization=reduction, storages=storages, encoding=codes,
                   unused=unused, functions=functions, cover=cover, equations=equations,
                   netlist=netlist, cost=cost, verification=None)
+
+
+def _mapped(design: Design, target: Target, goal: str) -> Design:
+    """``design`` built on ``target`` (unchanged for ``"two-level"``)."""
+    if target.kind == "two-level":
+        return design
+    mapping = map_design(design.table.name, design.table.inputs, design.table.outputs,
+                         design.cover, design.storages, design.netlist.reset_code, target, goal)
+    two = design.cost
+    cost = replace(two, total=round(mapping.area, 6), target=target.name,
+                   cells=mapping.cells, logic_area=round(mapping.logic_area, 6),
+                   flip_flop_area=round(mapping.flip_flop_area, 6), depth=mapping.depth,
+                   storage=mapping.storage)
+    return replace(design, netlist=mapping.netlist, cost=cost, mapping=mapping,
+                   two_level_cost=two)
 
 
 def _proved(design: Design) -> Design:

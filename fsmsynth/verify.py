@@ -122,8 +122,22 @@ def evaluate(netlist: Netlist, values: Mapping[str, Any], ones: Any) -> dict[str
     env = dict(values)
     for g in netlist.gates:
         args = [env[i] for i in g.inputs]
-        env[g.output] = _GATE_EVAL[g.kind](args, ones)
+        if g.table is not None:
+            env[g.output] = _table_eval(g.table, args, ones)
+        else:
+            env[g.output] = _GATE_EVAL[g.kind](args, ones)
     return env
+
+
+def _table_eval(table: int, args: Sequence[Any], ones: Any) -> Any:
+    """A truth table applied to ``args`` (Shannon expansion on the last input first)."""
+    if not args:
+        return ones if table & 1 else ones & ~ones
+    half = 1 << (len(args) - 1)
+    low = _table_eval(table & ((1 << half) - 1), args[:-1], ones)
+    high = _table_eval(table >> half, args[:-1], ones)
+    last = args[-1]
+    return (last & high) | (ones & ~last & low)
 
 
 def _and(a: Sequence[Any], ones: Any) -> Any:
@@ -466,7 +480,8 @@ class _Clauses:
         self.clauses: list[tuple[int, ...]] = []
         for g in netlist.gates:
             ins = [self.var[i] for i in g.inputs]
-            self.var[g.output] = self._gate(g.kind, ins)
+            self.var[g.output] = (self._table(g.table, ins) if g.table is not None
+                                  else self._gate(g.kind, ins))
 
     def fresh(self) -> int:
         self.count += 1
@@ -487,6 +502,12 @@ class _Clauses:
         out = self.fresh()
         self.clauses += [(-out, a, b), (-out, -a, -b), (out, -a, b), (out, a, -b)]
         return out
+
+    def _table(self, table: int, ins: list[int]) -> int:
+        """A truth table as the OR of its minterms."""
+        minterms = [self.conj([lit if m >> i & 1 else -lit for i, lit in enumerate(ins)])
+                    for m in range(1 << len(ins)) if table >> m & 1]
+        return self.disj(minterms)
 
     def _gate(self, kind: str, ins: list[int]) -> int:
         if kind in ("not", "buf"):

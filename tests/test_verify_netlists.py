@@ -125,7 +125,7 @@ def test_undriven_net_and_bad_cells_are_rejected() -> None:
     with pytest.raises(NetlistError) as info:
         Gate("g", "nand3", ("a",), "x")
     assert str(info.value) == ("gate 'g': unknown kind 'nand3'; use one of not, buf, and, or, "
-                               "nand, nor, xor, xnor, const0, const1")
+                               "nand, nor, xor, xnor, const0, const1, lut")
     with pytest.raises(NetlistError) as info:
         Gate("g", "not", ("a", "b"), "x")
     assert str(info.value) == "gate 'g' (not) has 2 inputs; it takes exactly 1"

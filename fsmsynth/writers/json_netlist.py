@@ -5,14 +5,15 @@ Schema ``fsmsynth-netlist``, version 1::
     {"schema": "fsmsynth-netlist", "version": 1, "module": NAME,
      "clock": "clk", "reset": "rst",
      "inputs": [NAME, ...], "outputs": [{"port": NAME, "net": NET}, ...],
-     "gates": [{"name": G, "kind": "not|and|or|const0|const1|...", "inputs": [NET, ...],
-                "output": NET}, ...],
+     "gates": [{"name": G, "kind": "not|and|or|const0|const1|...|lut", "inputs": [NET, ...],
+                "output": NET, "cell": CELL, "table": HEX}, ...],
      "flip_flops": [{"name": F, "kind": "d|t|jk|sr", "bit": B, "pins": {PIN: NET, ...},
                      "q": NET, "reset_value": 0|1, "reset_kind": "clear|set",
                      "edge": "rising|falling"}, ...],
      "cost": {...}}
 
-Keys are written in a fixed order and the text is byte-identical for equal netlists.
+``cell`` (the target's cell) and ``table`` (for kind ``lut``) appear only on mapped
+netlists.  Keys are written in a fixed order and the text is byte-identical for equal netlists.
 """
 
 from __future__ import annotations
@@ -21,7 +22,7 @@ import json
 from collections.abc import Mapping
 
 from fsmsynth.names import port_bits, ports_of
-from fsmsynth.netlist import Netlist
+from fsmsynth.netlist import Gate, Netlist
 
 SCHEMA = "fsmsynth-netlist"
 VERSION = 1
@@ -44,8 +45,7 @@ def netlist_data(netlist: Netlist, cost: Mapping[str, object] | None = None) -> 
                   for direction, names in (("input", netlist.inputs),
                                            ("output", [p for p, _n in netlist.outputs]))
                   for name, width in ports_of(names)],
-        "gates": [{"name": g.name, "kind": g.kind, "inputs": list(g.inputs), "output": g.output}
-                  for g in netlist.gates],
+        "gates": [_gate(g) for g in netlist.gates],
         "flip_flops": [{"name": ff.name, "kind": ff.storage.name, "bit": ff.bit,
                         "pins": {pin: net for pin, net in ff.pins}, "q": ff.q,
                         "reset_value": ff.reset_value, "reset_kind": ff.reset_kind,
@@ -60,3 +60,15 @@ def netlist_data(netlist: Netlist, cost: Mapping[str, object] | None = None) -> 
 def write_json_netlist(netlist: Netlist, cost: Mapping[str, object] | None = None) -> str:
     """JSON text of the netlist (and its cost summary when given)."""
     return json.dumps(netlist_data(netlist, cost), indent=2) + "\n"
+
+
+def _gate(g: Gate) -> dict[str, object]:
+    """A gate; a target's cell also gives its name, a table gate its truth table (hex, bit
+    m is the output when input i is m >> i & 1)."""
+    entry: dict[str, object] = {"name": g.name, "kind": g.kind, "inputs": list(g.inputs),
+                                "output": g.output}
+    if g.cell:
+        entry["cell"] = g.cell
+    if g.table is not None:
+        entry["table"] = f"{g.table:x}"
+    return entry

@@ -11,7 +11,7 @@ pragma with a comment saying why.
 from __future__ import annotations
 
 from fsmsynth.names import RESERVED_PREFIX, ports_of, split_bit
-from fsmsynth.netlist import FlipFlop, Netlist
+from fsmsynth.netlist import FlipFlop, Gate, Netlist
 from fsmsynth.storage import Storage
 from fsmsynth.version import __version__
 
@@ -73,8 +73,11 @@ def write_verilog(netlist: Netlist, *, header: str = "") -> str:
         lines.append("    /* verilator lint_on UNUSED */")
     lines.append("")
     for g in netlist.gates:
-        if g.kind in _PRIMITIVES:
-            lines.append(f"    {g.kind:<4} {g.name} ({', '.join((g.output, *g.inputs))});")
+        if g.table is not None:
+            lines.append(_table_instance(g))
+        elif g.kind in _PRIMITIVES:
+            cell = f"  // {g.cell}" if g.cell else ""
+            lines.append(f"    {g.kind:<4} {g.name} ({', '.join((g.output, *g.inputs))});{cell}")
         else:
             value = "1'b1" if g.kind == "const1" else "1'b0"
             lines.append(f"    assign {g.output} = {value};")
@@ -88,8 +91,54 @@ def write_verilog(netlist: Netlist, *, header: str = "") -> str:
     kinds = sorted({(ff.storage.name, ff.edge): ff.storage for ff in netlist.flip_flops}.items())
     for (_name, edge), storage in kinds:
         lines += _cell(storage, edge)
+    for module, (n, table) in sorted(_table_modules(netlist).items()):
+        lines += _table_module(module, n, table)
     lines.append("`default_nettype wire")
     return "\n".join(lines) + "\n"
+
+
+def _table_module_name(g: Gate) -> str:
+    """``fs_lut4`` for a look-up table (its truth table a parameter), ``fs_cell_AOI21`` for a
+    library cell (its truth table fixed in the module)."""
+    if g.cell.startswith("LUT"):
+        return f"{RESERVED_PREFIX}lut{len(g.inputs)}"
+    return f"{RESERVED_PREFIX}cell_{g.cell or f'table{len(g.inputs)}_{g.table:x}'}"
+
+
+def _table_modules(netlist: Netlist) -> dict[str, tuple[int, int | None]]:
+    found: dict[str, tuple[int, int | None]] = {}
+    for g in netlist.gates:
+        if g.table is not None:
+            module = _table_module_name(g)
+            found[module] = (len(g.inputs), None if g.cell.startswith("LUT") else g.table)
+    return found
+
+
+def _table_instance(g: Gate) -> str:
+    module = _table_module_name(g)
+    n = len(g.inputs)
+    pins = "{" + ", ".join(reversed(g.inputs)) + "}"
+    if g.cell.startswith("LUT"):
+        init = f"{1 << n}'h{g.table:0{max(1, (1 << n) // 4)}x}"
+        return f"    {module} #(.INIT({init})) {g.name} (.a({pins}), .y({g.output}));"
+    return f"    {module} {g.name} (.a({pins}), .y({g.output}));"
+
+
+def _table_module(module: str, n: int, table: int | None) -> list[str]:
+    """A look-up table module; ``table`` fixed for a library cell, else a parameter."""
+    guard = f"{module.upper()}_DEFINED"
+    size = 1 << n
+    if table is None:
+        head = [f"// {n}-input look-up table: y is bit a of INIT.",
+                f"module {module} #(parameter [{size - 1}:0] INIT = {size}'h0) ("]
+        body = "    assign y = INIT[a];"
+    else:
+        head = [f"// Library cell: y is bit a of its truth table {size}'h{table:x}.",
+                f"module {module} ("]
+        body = f"    localparam [{size - 1}:0] TABLE = {size}'h{table:x};\n    assign y = TABLE[a];"
+    return [f"`ifndef {guard}", f"`define {guard}", "/* verilator lint_off DECLFILENAME */",
+            *head, f"    input  wire [{n - 1}:0] a,", "    output wire y", ");", body,
+            "endmodule", "/* verilator lint_on DECLFILENAME */", "`endif", ""]
 
 
 def _range(width: int | None) -> str:
