@@ -9,48 +9,15 @@ lists, don't-care next states or outputs, don't-care pins of the excitation tabl
 from __future__ import annotations
 
 from collections.abc import Sequence
-from dataclasses import dataclass
 
 from fsmsynth.encode import Encoding
 from fsmsynth.errors import OptionError
 from fsmsynth.logic.cube import Cube
+from fsmsynth.logic.functions import Function, LogicFunctions
 from fsmsynth.storage import Storage
 from fsmsynth.table import StateTable
 
-
-@dataclass(frozen=True, slots=True)
-class Function:
-    """One incompletely specified single-output function: where it must be 1 and where 0."""
-
-    name: str
-    on: tuple[Cube, ...]
-    off: tuple[Cube, ...]
-
-
-@dataclass(frozen=True, slots=True)
-class LogicFunctions:
-    """The functions a machine needs, over shared variables.
-
-    Attributes
-    ----------
-    variables:
-        Variable names, variable 0 first: ``Q0 .. Q<k-1>`` then the inputs.
-    functions:
-        Flip-flop data inputs (bit 0 first, pins in storage order), then the outputs.
-    exclusive:
-        Pairs of function names that must never be 1 at the same point (``S0``/``R0``).
-    """
-
-    variables: tuple[str, ...]
-    functions: tuple[Function, ...]
-    exclusive: tuple[tuple[str, str], ...] = ()
-
-    def function(self, name: str) -> Function:
-        """The function called ``name``."""
-        for f in self.functions:
-            if f.name == name:
-                return f
-        raise KeyError(name)
+__all__ = ["Function", "LogicFunctions", "excite", "pin_signal"]
 
 
 def pin_signal(storage: Storage, pin: str, bit: int) -> str:

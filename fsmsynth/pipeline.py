@@ -20,10 +20,11 @@ from fsmsynth.cost import DEFAULT_WEIGHTS, Cost, CostWeights, cost_of, logic_sha
 from fsmsynth.encode import Encoding, encode
 from fsmsynth.equations import Equation
 from fsmsynth.errors import InvariantError, OptionError, VerificationError
-from fsmsynth.excite import LogicFunctions, excite
+from fsmsynth.excite import excite
 from fsmsynth.frozen import FrozenMap
 from fsmsynth.invariants import InvariantCheck, check_invariants, constrain_outputs
 from fsmsynth.logic.cover import Cover, minimize_logic
+from fsmsynth.logic.functions import LogicFunctions
 from fsmsynth.map.expr import Expr
 from fsmsynth.map.factor import factor
 from fsmsynth.map.realize import Mapping_, map_design

@@ -46,3 +46,16 @@ def test_nothing_imports_upward() -> None:
                 if rank(target) > rank(me) and (me, target) not in ALLOWED:
                     problems.append(f"{me} imports {target}")
     assert problems == []
+
+
+def test_logic_knows_nothing_of_machines() -> None:
+    """Two-level minimization works on plain functions: fsmsynth/logic/ imports no module
+    about tables, encodings, storage or netlists."""
+    machine = ("fsmsynth.table", "fsmsynth.excite", "fsmsynth.encode", "fsmsynth.storage",
+               "fsmsynth.netlist", "fsmsynth.transitions")
+    problems = []
+    for path in sorted((PACKAGE / "logic").rglob("*.py")):
+        for node in ast.walk(ast.parse(path.read_text())):
+            if isinstance(node, ast.ImportFrom) and node.module in machine:
+                problems.append(f"{path.name} imports {node.module}")
+    assert problems == []

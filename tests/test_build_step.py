@@ -11,9 +11,9 @@ import pytest
 
 from fsmsynth import StateTable, synthesize
 from fsmsynth.cli import main
-from fsmsynth.excite import Function
 from fsmsynth.formats import read_table
 from fsmsynth.logic.cube import Cube
+from fsmsynth.logic.functions import Function
 from fsmsynth.writers.dot import render, write_netlist_dot, write_state_diagram
 from fsmsynth.writers.kmap import write_karnaugh
 

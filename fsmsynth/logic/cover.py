@@ -14,10 +14,10 @@ from dataclasses import dataclass
 
 from fsmsynth.cost import DEFAULT_WEIGHTS, CostWeights, normal_terms
 from fsmsynth.errors import OptionError
-from fsmsynth.excite import Function, LogicFunctions
 from fsmsynth.logic.cube import Cube
 from fsmsynth.logic.espresso import espresso_cover
 from fsmsynth.logic.exact import exact_cover, points_of
+from fsmsynth.logic.functions import Function, LogicFunctions
 
 METHODS = ("heuristic", "exact", "auto")
 EXACT_AUTO_LIMIT = 10

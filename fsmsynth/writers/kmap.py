@@ -10,8 +10,8 @@ from __future__ import annotations
 
 from collections.abc import Sequence
 
-from fsmsynth.excite import Function
 from fsmsynth.logic.cube import Cube, bits_of
+from fsmsynth.logic.functions import Function
 
 
 def _gray(bits: int) -> list[int]:
