@@ -56,9 +56,11 @@ from fsmsynth.frozen import FrozenMap
 from fsmsynth.logic import bdd
 from fsmsynth.logic.cover import minimize_logic
 from fsmsynth.logic.cube import Cube, partition_within
+from fsmsynth.map.realize import map_design
 from fsmsynth.regions import state_regions
 from fsmsynth.storage import Storage
 from fsmsynth.table import StateTable
+from fsmsynth.targets import Target
 
 SEARCHES = ("adjacency", "exhaustive", "anneal")
 RAW_LIMIT = 720
@@ -67,13 +69,17 @@ RAW_LIMIT = 720
 
 @dataclass(frozen=True, slots=True)
 class Scorer:
-    """The true cost of an assignment: synthesize its logic and weigh it."""
+    """The true cost of an assignment: synthesize its logic and weigh it, or, with a
+    ``target`` other than two-level, map it onto the target and take its area (the cost of
+    what will be built)."""
 
     table: StateTable
     storages: Callable[[int], tuple[Storage, ...]]
     unused: str
     weights: CostWeights
     logic: str
+    target: Target | None = None
+    map_for: str = "area"
     memo: dict[object, tuple[tuple[Cube, ...], bool]] = field(default_factory=dict,
                                                               compare=False, repr=False)
 
@@ -87,6 +93,11 @@ class Scorer:
         for s in kinds:
             counts[s.name] = counts.get(s.name, 0) + 1
         cost = cost_of(logic_shape(cover.terms), counts, self.weights)
+        if self.target is not None and self.target.kind != "two-level":
+            reset = codes[self.table.states.index(self.table.reset)]
+            mapped = map_design(self.table.name, self.table.inputs, self.table.outputs, cover,
+                                kinds, reset, self.target, self.map_for)
+            return round(mapped.area, 6), cost.gate_inputs
         return cost.total, cost.gate_inputs
 
 
@@ -373,6 +384,10 @@ class SearchResult:
     proven: bool
     interrupted: bool
     timed_out: bool = False
+    seconds: float = field(default=0.0, compare=False)
+    """Wall-clock time of the search (not compared: equal searches take different times)."""
+    scored_on: str = "two-level"
+    """The target whose cost scored the candidates."""
 
 
 EXHAUSTIVE_LIMIT = 20_000

@@ -186,6 +186,7 @@ def _parser() -> argparse.ArgumentParser:
     tim = sub.add_parser("timing", help="clock period, hold check and critical path")
     tim.add_argument("spec", help="state table: .toml spec or .csv table")
     _table_settings(tim)
+    _target_options(tim)
     tim.add_argument("--storage", default="d", type=str, help="as for build (default d)")
     tim.add_argument("--encoding", default="binary", type=str, help="as for build")
     tim.add_argument("--logic", default="heuristic", choices=LOGIC_METHODS)
@@ -287,7 +288,8 @@ def _report(design: Design) -> dict[str, object]:
         "assignment": None if design.assignment is None else {
             "cost": design.assignment.cost, "evaluated": design.assignment.evaluated,
             "proven": design.assignment.proven, "interrupted": design.assignment.interrupted,
-            "timed_out": design.assignment.timed_out},
+            "timed_out": design.assignment.timed_out,
+            "scored_on": design.assignment.scored_on, "seconds": design.assignment.seconds},
         "states": {"given": len(design.table.states), "encoded": len(design.encoded_table.states),
                    "merged": [list(c) for c in m.merged] if m else [],
                    "unreachable": list(m.unreachable) if m else [],
@@ -341,7 +343,7 @@ def _build(args: argparse.Namespace) -> int:
                   ", time limit reached: best so far" if a.timed_out else
                   ", proven best" if a.proven else "")
         print(f"state assignment ({design.encoding.method}): cost {a.cost:g} after "
-              f"{a.evaluated} assignments{ending}")
+              f"{a.evaluated} assignments{ending}, scored on {a.scored_on} in {a.seconds:g} s")
     if design.minimization is not None:
         for line in _minimization_lines(design.minimization, len(table.states)):
             print(line)
@@ -414,7 +416,8 @@ def _reduce(args: argparse.Namespace) -> int:
 def _timing(args: argparse.Namespace) -> int:
     table = _read(args)
     design = synthesize(table, _storage_arg(args.storage), _encoding_arg(args.encoding),
-                        logic=args.logic, clock_edge=args.clock_edge)
+                        logic=args.logic, clock_edge=args.clock_edge,
+                        target=_target_arg(args.target), map_for=args.map_for)
     report = timing(design, read_delays(args.delays) if args.delays else None)
     if args.json:
         def steps(path: tuple[object, ...]) -> list[dict[str, object]]:

@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import math
+import time
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, replace
 from functools import cached_property, partial
@@ -270,16 +271,16 @@ def synthesize(table: StateTable, storage: StorageChoice = "d",
     if reduction and isinstance(encoding, Mapping):
         encoding = {s: c for s, c in encoding.items() if s in work.states or s not in table.states}
     search: SearchResult | None = None
+    on = target_named(target)
+    if map_for not in ("area", "delay"):
+        raise OptionError(f"map for {map_for!r}: use 'area' or 'delay'")
     if isinstance(encoding, str) and encoding in SEARCHES:
         codes, search = _search(work, encoding, storage, unused, weights, logic, seed, budget,
-                                width, jobs, time_limit, force)
+                                width, jobs, time_limit, force, on, map_for)
     else:
         if width is not None:
             raise OptionError("width applies to adjacency, exhaustive and anneal encodings")
         codes = encode(work, encoding)
-    on = target_named(target)
-    if map_for not in ("area", "delay"):
-        raise OptionError(f"map for {map_for!r}: use 'area' or 'delay'")
     if storage == "best":
         candidates = [(k,) * codes.width for k in STORAGES.values()]
         candidates.append(_cheapest_per_bit(work, codes, unused, weights, logic))
@@ -304,7 +305,7 @@ def synthesize(table: StateTable, storage: StorageChoice = "d",
 def _search(table: StateTable, method: str, storage: StorageChoice, unused: str,
             weights: CostWeights, logic: str, seed: int, budget: int | None,
             width: int | None, jobs: int, time_limit: float | None,
-            force: bool) -> tuple[Encoding, SearchResult | None]:
+            force: bool, target: Target, map_for: str) -> tuple[Encoding, SearchResult | None]:
     """Codes chosen by one of the searches of :mod:`fsmsynth.assign`."""
     n = len(table.states)
     k = width if width is not None else min_width(n)
@@ -325,7 +326,9 @@ def _search(table: StateTable, method: str, storage: StorageChoice, unused: str,
         raise OptionError(f"time limit {time_limit!r}: give a finite number of seconds > 0")
     # A partial of a module function, not a closure: worker processes receive the scorer.
     kinds = partial(_per_bit, "d" if storage in ("best", "per-bit") else storage)
-    score = Scorer(table=table, storages=kinds, unused=unused, weights=weights, logic=logic)
+    score = Scorer(table=table, storages=kinds, unused=unused, weights=weights, logic=logic,
+                   target=target, map_for=map_for)
+    started = time.perf_counter()
     if method == "adjacency":
         result = adjacency_search(score, table, k, jobs=jobs, time_limit=time_limit)
     elif method == "exhaustive":
@@ -333,6 +336,8 @@ def _search(table: StateTable, method: str, storage: StorageChoice, unused: str,
     else:
         result = anneal_search(score, table, k, seed, 400 if budget is None else budget,
                                jobs=jobs, time_limit=time_limit)
+    result = replace(result, seconds=round(time.perf_counter() - started, 3),
+                     scored_on=target.name)
     return Encoding(method=method, width=result.width,
                     codes=FrozenMap(dict(zip(table.states, result.codes)))), result
 

@@ -169,8 +169,21 @@ class TimingReport:
 _NONE = (-math.inf, None)
 
 
+def _gate_delay(g: Any, delays: Delays, longest: bool, cells: Mapping[str, float]) -> float:
+    """A gate's delay: a target cell's own delay (in units of the model's 2-input NAND),
+    else the model's delay of its kind and fan-in."""
+    if g.cell in cells:
+        nand = delays.gates.get("nand")
+        unit = (nand.longest(2) if longest else nand.shortest(2)) if nand else 1.0
+        return cells[g.cell] * unit
+    model = delays.gates.get(g.kind)
+    if model is None:
+        raise ValueError(f"no delay for gate kind {g.kind!r}: add it to the delay model")
+    return model.longest(len(g.inputs)) if longest else model.shortest(len(g.inputs))
+
+
 def _arrivals(netlist: Netlist, delays: Delays, sources: Mapping[str, float],
-              longest: bool) -> dict[str, tuple[float, str | None]]:
+              longest: bool, cells: Mapping[str, float]) -> dict[str, tuple[float, str | None]]:
     """Arrival time of every net and the gate input net it came through."""
     pick = max if longest else min
     sentinel = -math.inf if longest else math.inf
@@ -181,20 +194,16 @@ def _arrivals(netlist: Netlist, delays: Delays, sources: Mapping[str, float],
         ins = [(arrival[i][0], i) for i in g.inputs if i in arrival]
         if not ins:
             continue
-        model = delays.gates.get(g.kind)
-        if model is None:
-            raise ValueError(f"no delay for gate kind {g.kind!r}: add it to the delay model")
         t, via = pick(ins)
         if t == sentinel:
             continue
-        d = model.longest(len(g.inputs)) if longest else model.shortest(len(g.inputs))
-        arrival[g.output] = (t + d, via)
+        arrival[g.output] = (t + _gate_delay(g, delays, longest, cells), via)
     return arrival
 
 
 def _trace(netlist: Netlist, arrival: Mapping[str, tuple[float, str | None]], net: str,
-           delays: Delays, longest: bool, start_kinds: Mapping[str, tuple[str, str, float]]
-           ) -> list[PathStep]:
+           delays: Delays, longest: bool, start_kinds: Mapping[str, tuple[str, str, float]],
+           cells: Mapping[str, float]) -> list[PathStep]:
     driver = {g.output: g for g in netlist.gates}
     steps: list[PathStep] = []
     current: str | None = net
@@ -205,9 +214,8 @@ def _trace(netlist: Netlist, arrival: Mapping[str, tuple[float, str | None]], ne
             element, kind, d = start_kinds[current]
             steps.append(PathStep(element, kind, current, d, t))
             break
-        model = delays.gates[g.kind]
-        d = model.longest(len(g.inputs)) if longest else model.shortest(len(g.inputs))
-        steps.append(PathStep(g.name, g.kind, current, d, t))
+        d = _gate_delay(g, delays, longest, cells)
+        steps.append(PathStep(g.name, g.cell or g.kind, current, d, t))
         current = via
     return steps[::-1]
 
@@ -223,6 +231,8 @@ def timing(design: Any, delays: Delays | None = None) -> TimingReport:
         The delay model (default: :class:`Delays`, illustrative values).
     """
     netlist: Netlist = design.netlist if hasattr(design, "netlist") else design
+    mapping = getattr(design, "mapping", None)
+    cells: Mapping[str, float] = mapping.cell_delays if mapping is not None else {}
     d = delays or Delays()
     starts: dict[str, tuple[str, str, float]] = {}
     early_starts: dict[str, tuple[str, str, float]] = {}
@@ -236,8 +246,8 @@ def timing(design: Any, delays: Delays | None = None) -> TimingReport:
         late[i], early[i] = d.input_delay, d.input_delay_min
         starts[i] = (i, "input", d.input_delay)
         early_starts[i] = (i, "input", d.input_delay_min)
-    longest = _arrivals(netlist, d, late, True)
-    shortest = _arrivals(netlist, d, early, False)
+    longest = _arrivals(netlist, d, late, True, cells)
+    shortest = _arrivals(netlist, d, early, False, cells)
 
     worst: tuple[float, str, str] | None = None
     hold: tuple[float, str, str] | None = None
@@ -257,12 +267,13 @@ def timing(design: Any, delays: Delays | None = None) -> TimingReport:
         period, hold_slack = 0.0, math.inf
     else:
         period = worst[0]
-        path = _trace(netlist, longest, worst[1], d, True, starts)
+        path = _trace(netlist, longest, worst[1], d, True, starts, cells)
         critical = (*path, PathStep(worst[2], "setup", worst[1], d.setup, worst[0]))
         hold_slack = hold[0]
-        hold_steps = (*_trace(netlist, shortest, hold[1], d, False, early_starts),
+        hold_steps = (*_trace(netlist, shortest, hold[1], d, False, early_starts, cells),
                       PathStep(hold[2], "hold", hold[1], d.hold, hold[0] + d.hold))
-    from_inputs = _arrivals(netlist, d, {i: d.input_delay for i in netlist.inputs}, True)
+    from_inputs = _arrivals(netlist, d, {i: d.input_delay for i in netlist.inputs}, True,
+                              cells)
     io_delay = max((from_inputs[net][0] for _p, net in netlist.outputs if net in from_inputs),
                    default=None)
     edge = netlist.flip_flops[0].edge if netlist.flip_flops else "rising"

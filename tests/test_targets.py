@@ -396,3 +396,30 @@ def test_cli_compare_and_build_on_targets(tmp_path: Path,
     out = capsys.readouterr().out
     assert "On target tiny" in out and "JK flip-flops: " in out and "built from D" in out
     assert '"cell": "NAND2"' in (tmp_path / "out" / "parcel_locker.json").read_text()
+
+
+def test_searches_score_candidates_by_the_targets_cost() -> None:
+    from fsmsynth.formats import read_table
+    table = read_table(EXAMPLES / "parcel_locker.toml")
+    searched = synthesize(table, "jk", "exhaustive", target="nand2")
+    a = searched.assignment
+    assert a is not None and a.scored_on == "nand2" and a.proven and a.seconds > 0
+    assert a.cost == pytest.approx(searched.cost.total)
+    # Exhaustive over every assignment: no fixed encoding does better on the target.
+    for encoding in ("binary", "gray", "one-hot"):
+        assert searched.cost.total <= synthesize(table, "jk", encoding,
+                                                 target="nand2").cost.total + 1e-9
+
+
+def test_timing_of_a_mapped_design_uses_its_cells() -> None:
+    from fsmsynth import Delays, GateDelay, timing
+    from fsmsynth.formats import read_table
+    table = read_table(EXAMPLES / "parcel_locker.toml")
+    design = synthesize(table, "d", target="nand2")
+    delays = Delays(gates={"nand": GateDelay(10.0, 0.0, 10.0, 0.0),
+                           "not": GateDelay(99.0, 0.0, 99.0, 0.0)})
+    report = timing(design, delays)
+    cells = [s for s in report.critical_path if s.kind in ("INV", "NAND2")]
+    assert cells, report.lines()
+    # INV 0.6 and NAND2 1.0 of the NAND's 10 ps, not the model's 99 ps inverter.
+    assert {round(s.delay, 6) for s in cells} <= {6.0, 10.0}

@@ -65,6 +65,8 @@ class Mapping_:
     depth: int
     storage: Mapping[str, Mapping[str, object]]
     fit: ArrayFit | None = None
+    cell_delays: Mapping[str, float] = FrozenMap({})
+    """Delay of each cell used, in the target's units (a LUT or an array pass counts 1)."""
 
     @property
     def area(self) -> float:
@@ -138,8 +140,11 @@ def map_design(name: str, inputs: Sequence[str], outputs: Sequence[str], cover: 
                       outputs=tuple((o, nets[o]) for o in outputs), gates=tuple(gates),
                       flip_flops=flip_flops)
     ff_area = sum(target.flip_flops[ff.storage.name] for ff in flip_flops)
+    delays = {c.name: c.delay for c in target.cells if c.name in counts}
+    delays.update({name: 1.0 for name in counts if name.startswith("LUT")})
     return Mapping_(target.name, netlist, FrozenMap(dict(sorted(counts.items()))), area,
-                    ff_area, _depth(netlist), FrozenMap(storage_report))
+                    ff_area, _depth(netlist), FrozenMap(storage_report),
+                    cell_delays=FrozenMap(dict(sorted(delays.items()))))
 
 
 def _cover(graph: SubjectGraph, cover: Cover, width: int, target: Target, goal: str
@@ -276,4 +281,5 @@ def _on_array(name: str, inputs: Sequence[str], outputs: Sequence[str], cover: C
     # Area of an array design: its macrocells (each output, fed-back signal and split
     # part uses one; registered ones hold the flip-flops), the device's resource that runs out.
     return Mapping_(target.name, netlist, FrozenMap(counts), float(fit.macrocells - len(
-        storages)), float(len(storages)), _depth(netlist), FrozenMap(report), fit)
+        storages)), float(len(storages)), _depth(netlist), FrozenMap(report), fit,
+        FrozenMap({"PT": 1.0, "OR": 0.0}))
