@@ -11,7 +11,7 @@ mapped netlist against the table again: nothing here is assumed correct.
 
 from __future__ import annotations
 
-from collections.abc import Mapping, Sequence
+from collections.abc import Iterable, Mapping, Sequence
 from dataclasses import dataclass
 
 from fsmsynth.frozen import FrozenMap
@@ -22,6 +22,7 @@ from fsmsynth.map import cells as cellmap
 from fsmsynth.map.expr import Expr
 from fsmsynth.map.factor import factor
 from fsmsynth.map.luts import map_luts
+from fsmsynth.map.network import Network, plain_network, restructured
 from fsmsynth.map.pterms import ArrayFit, fit_array
 from fsmsynth.map.subject import SubjectGraph
 from fsmsynth.names import RESERVED_PREFIX
@@ -95,21 +96,20 @@ def characteristic_sop(storage: Storage) -> tuple[Cube, ...]:
     return tuple(Cube.from_string(t) for t in minimize_sop(n, on, dc).terms)
 
 
-def _signals(cover: Cover, storages: Sequence[Storage], outputs: Sequence[str],
-             target: Target) -> tuple[dict[str, Expr], list[tuple[int, Storage, bool]]]:
-    """Factored form of every pin and output, and per bit (bit, kind built, converted)."""
-    factored = {name: factor(terms) for name, terms in zip(cover.names, cover.terms)}
-    bits = [(b, s if target.has_storage(s.name) else D, not target.has_storage(s.name))
+def _bits(storages: Sequence[Storage], target: Target) -> list[tuple[int, Storage, bool]]:
+    """Per state bit: (bit, the kind built, whether it is converted from D)."""
+    return [(b, s if target.has_storage(s.name) else D, not target.has_storage(s.name))
             for b, s in enumerate(storages)]
-    return factored, bits
 
 
-def _graph(cover: Cover, storages: Sequence[Storage], outputs: Sequence[str],
-           factored: Mapping[str, Expr], bits: Sequence[tuple[int, Storage, bool]],
+def _graph(network: Network, cover: Cover, storages: Sequence[Storage],
+           outputs: Sequence[str], bits: Sequence[tuple[int, Storage, bool]],
            convert: bool) -> SubjectGraph:
     graph = SubjectGraph()
     leaves = [graph.input(v) for v in cover.variables]
-    nodes = {name: graph.expression(expr, leaves) for name, expr in factored.items()}
+    for _name, terms in network.nodes:
+        leaves.append(graph.expression(factor(terms), leaves))
+    nodes = {name: leaves[network.n_base + i] for name, i in network.signals}
     for b, storage in enumerate(storages):
         converted = bits[b][2]
         if converted and convert:
@@ -126,14 +126,32 @@ def _graph(cover: Cover, storages: Sequence[Storage], outputs: Sequence[str],
 def map_design(name: str, inputs: Sequence[str], outputs: Sequence[str], cover: Cover,
                storages: Sequence[Storage], reset_code: int, target: Target,
                goal: str = "area", edge: str = "rising") -> Mapping_:
-    """Build the design on ``target`` (a cell library, LUTs or a product-term array)."""
-    factored, bits = _signals(cover, storages, outputs, target)
+    """Build the design on ``target`` (a cell library, LUTs or a product-term array).
+
+    For cells and LUTs both the functions as factored one by one and the network after
+    common-cube extraction and resubstitution (:mod:`fsmsynth.map.network`) are mapped,
+    and the cheaper is kept (by area, or by depth then area with ``goal="delay"``)."""
+    bits = _bits(storages, target)
     if target.kind == "pterms":
         return _on_array(name, inputs, outputs, cover, storages, reset_code, target, bits,
                          edge)
-    graph = _graph(cover, storages, outputs, factored, bits, convert=True)
-    gates, nets, counts, area = _cover(graph, cover, len(storages), target, goal)
-    storage_report = _storage_report(cover, storages, outputs, factored, bits, target, goal,
+    n = len(cover.variables)
+    options = [plain_network(cover.names, cover.terms, n),
+               restructured(cover.names, cover.terms, n)]
+    best: tuple[tuple[float, ...], Network, tuple[list[Gate], dict[str, str],
+                                                   dict[str, int], float]] | None = None
+    for network in options:
+        graph = _graph(network, cover, storages, outputs, bits, convert=True)
+        covered = _cover(graph, cover, len(storages), target, goal)
+        depth = _depth(Netlist(name=name, inputs=tuple(inputs), outputs=(),
+                               gates=tuple(covered[0]), flip_flops=()), covered[1].values())
+        key = ((round(covered[3], 9), depth) if goal == "area"
+               else (depth, round(covered[3], 9)))
+        if best is None or key < best[0]:
+            best = (key, network, covered)
+    assert best is not None
+    _key, network, (gates, nets, counts, area) = best
+    storage_report = _storage_report(network, cover, storages, outputs, bits, target, goal,
                                      area)
     flip_flops = _flip_flops(storages, bits, nets, reset_code, edge)
     netlist = Netlist(name=name, inputs=tuple(inputs),
@@ -220,8 +238,8 @@ def _flip_flops(storages: Sequence[Storage], bits: Sequence[tuple[int, Storage, 
     return tuple(result)
 
 
-def _storage_report(cover: Cover, storages: Sequence[Storage], outputs: Sequence[str],
-                    factored: Mapping[str, Expr], bits: Sequence[tuple[int, Storage, bool]],
+def _storage_report(network: Network, cover: Cover, storages: Sequence[Storage],
+                    outputs: Sequence[str], bits: Sequence[tuple[int, Storage, bool]],
                     target: Target, goal: str, area: float) -> dict[str, dict[str, object]]:
     """Per storage kind: flip-flops, what they are built from, and their areas.  The
     conversion area is this design's logic area minus that of the same logic mapped with
@@ -229,7 +247,7 @@ def _storage_report(cover: Cover, storages: Sequence[Storage], outputs: Sequence
     converted = any(c for _b, _s, c in bits)
     conversion = 0.0
     if converted:
-        plain = _graph(cover, storages, outputs, factored, bits, convert=False)
+        plain = _graph(network, cover, storages, outputs, bits, convert=False)
         plain_area = _cover(plain, cover, len(storages), target, goal)[3]
         conversion = round(max(0.0, area - plain_area), 4)
     report: dict[str, dict[str, object]] = {}
@@ -248,13 +266,15 @@ def _storage_report(cover: Cover, storages: Sequence[Storage], outputs: Sequence
     return report
 
 
-def _depth(netlist: Netlist) -> int:
+def _depth(netlist: Netlist, ends: Iterable[str] | None = None) -> int:
+    """Most gates on a path to an output or flip-flop pin (or to the nets ``ends``)."""
     level: dict[str, int] = {}
     for g in netlist.gates:
         level[g.output] = 0 if g.kind.startswith("const") else 1 + max(
             (level.get(i, 0) for i in g.inputs), default=0)
-    ends = [net for _p, net in netlist.outputs]
-    ends += [net for ff in netlist.flip_flops for _p, net in ff.pins]
+    if ends is None:
+        ends = [net for _p, net in netlist.outputs]
+        ends += [net for ff in netlist.flip_flops for _p, net in ff.pins]
     return max((level.get(n, 0) for n in ends), default=0)
 
 
