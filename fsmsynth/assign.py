@@ -80,6 +80,9 @@ class Scorer:
     logic: str
     target: Target | None = None
     map_for: str = "area"
+    unit_distance: float = 0.0
+    """Added per transition between two states whose codes differ in more than one bit
+    (:data:`UNIT_DISTANCE_PENALTY` when asked for: such steps come first, cost second)."""
     memo: dict[object, tuple[tuple[Cube, ...], bool]] = field(default_factory=dict,
                                                               compare=False, repr=False)
 
@@ -93,12 +96,25 @@ class Scorer:
         for s in kinds:
             counts[s.name] = counts.get(s.name, 0) + 1
         cost = cost_of(logic_shape(cover.terms), counts, self.weights)
+        penalty = 0.0
+        if self.unit_distance:
+            code = dict(zip(self.table.states, codes))
+            penalty = self.unit_distance * sum(
+                1 for a, b in transitions(self.table) if bin(code[a] ^ code[b]).count("1") > 1)
         if self.target is not None and self.target.kind != "two-level":
             reset = codes[self.table.states.index(self.table.reset)]
             mapped = map_design(self.table.name, self.table.inputs, self.table.outputs, cover,
                                 kinds, reset, self.target, self.map_for)
-            return round(mapped.area, 6), cost.gate_inputs
-        return cost.total, cost.gate_inputs
+            return round(mapped.area + penalty, 6), cost.gate_inputs
+        return cost.total + penalty, cost.gate_inputs
+
+
+UNIT_DISTANCE_PENALTY = 1000.0
+
+
+def transitions(table: StateTable) -> list[tuple[str, str]]:
+    """Distinct (state, next state) pairs of the table's rows, the state changing."""
+    return list(dict.fromkeys((s, n) for s, _c, n, _o in table.rows if n is not None and n != s))
 
 
 class _Progress:

@@ -152,6 +152,13 @@ def _parser() -> argparse.ArgumentParser:
                        help="run an exhaustive search however many assignments it has")
     build.add_argument("--width", type=int,
                        help="code width in bits for adjacency, exhaustive and anneal")
+    build.add_argument("--unit-distance", action="store_true",
+                       help="searched encodings: codes one bit apart across every transition "
+                            "where possible (no function hazards there)")
+    build.add_argument("--outputs", default="combinational",
+                       choices=("combinational", "hazard-free"),
+                       help="hazard-free: add the consensus terms that remove static hazards "
+                            "of the outputs under single-input changes (default combinational)")
     build.add_argument("--unused", default="dont-care", choices=UNUSED_POLICIES,
                        help="unused state codes: don't cares, or safe (go to reset)")
     build.add_argument("--logic", default="heuristic", choices=LOGIC_METHODS,
@@ -301,6 +308,12 @@ def _report(design: Design) -> dict[str, object]:
         "verified": bool(design.verification),
         "verification": design.verification.summary() if design.verification else None,
         "invariants": design.invariants.summary() if design.invariants else None,
+        "glitches": [{"output": g.output, "kind": g.kind, "state": g.state, "inputs": g.inputs,
+                      "changing": g.changing, "next_state": g.next_state}
+                     for g in design.glitches.glitches],
+        "glitch_free": list(design.glitches.glitch_free),
+        "hazard_free_outputs": list(design.hazard_free),
+        "multi_bit_steps": [list(x) for x in design.multi_bit_steps],
     }
 
 
@@ -311,7 +324,8 @@ def _build(args: argparse.Namespace) -> int:
                         weights=_weights_arg(args.weights), seed=args.seed, budget=args.budget,
                         width=args.width, clock_edge=args.clock_edge, jobs=args.jobs,
                         time_limit=args.time_limit, force=args.force,
-                        target=_target_arg(args.target), map_for=args.map_for)
+                        target=_target_arg(args.target), map_for=args.map_for,
+                        outputs=args.outputs, unit_distance=args.unit_distance)
     out = Path(args.out)
     files = {out / f"{table.name}.v": design.verilog, out / f"{table.name}.json": design.json}
     if args.testbench:
@@ -366,6 +380,16 @@ def _build(args: argparse.Namespace) -> int:
         print()
         for line in _target_lines(design):
             print(line)
+    print()
+    if args.unit_distance:
+        steps = design.multi_bit_steps
+        print("transitions more than one bit apart: " + (", ".join(
+            f"{a} -> {b} ({n} bits)" for a, b, n in steps) if steps else "none"))
+        print()
+    print("Glitches (two-level outputs"
+          + (", hazard-free covers" if design.hazard_free else "") + "):")
+    for line in design.glitches.lines():
+        print(f"  {line}")
     print()
     assert design.verification is not None
     print(design.verification.summary())

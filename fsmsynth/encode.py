@@ -15,7 +15,7 @@ from fsmsynth.frozen import FrozenMap
 from fsmsynth.logic.cube import Cube, complement_cubes
 from fsmsynth.table import StateTable
 
-METHODS = ("binary", "gray", "one-hot")
+METHODS = ("binary", "gray", "one-hot", "outputs")
 
 
 @dataclass(frozen=True, slots=True)
@@ -63,7 +63,9 @@ def encode(table: StateTable, method: str | Mapping[str, int | str] = "binary") 
         ``"binary"`` or ``"gray"``: the reset state gets all zeros and the other states the
         following binary (or reflected Gray) numbers in declaration order, in
         ``max(1, ceil(log2 n))`` bits.  ``"one-hot"``: one flip-flop per state, state ``i``
-        in declaration order sets bit ``i``.  A mapping gives each state its code, as an int
+        in declaration order sets bit ``i``.  ``"outputs"`` (Moore machines): bit ``j`` is
+        output ``j``, then the fewest extra bits that tell apart states sharing outputs, so
+        the outputs are flip-flop outputs.  A mapping gives each state its code, as an int
         or as a string of 0/1 written most significant bit first.
 
     Raises
@@ -87,6 +89,8 @@ def encode(table: StateTable, method: str | Mapping[str, int | str] = "binary") 
     if method == "one-hot":
         return Encoding(method="one-hot", width=len(table.states),
                         codes=FrozenMap({s: 1 << i for i, s in enumerate(table.states)}))
+    if method == "outputs":
+        return _output_encoded(table)
     if method not in ("binary", "gray"):
         raise OptionError(
             f"unknown encoding {method!r}: use one of {', '.join(METHODS)}, "
@@ -97,6 +101,27 @@ def encode(table: StateTable, method: str | Mapping[str, int | str] = "binary") 
     gray = method == "gray"
     return Encoding(method=method, width=width, codes=FrozenMap(
         {s: (i ^ (i >> 1)) if gray else i for i, s in enumerate(order)}))
+
+
+def _output_encoded(table: StateTable) -> Encoding:
+    """Moore outputs as state bits: bit ``j`` is output ``j`` (a don't care taken as 0),
+    then as few extra bits as tell apart the states that share an output word (their
+    order within the group, in declaration order)."""
+    if table.kind != "moore":
+        raise OptionError("encoding 'outputs' makes a Moore machine's outputs state bits; "
+                          "a Mealy machine's outputs depend on its inputs too")
+    m = len(table.outputs)
+    groups: dict[int, list[str]] = {}
+    for state in table.states:
+        word = table.output_cube_of(state)
+        value = sum(1 << j for j, ch in enumerate(word) if ch == "1")
+        groups.setdefault(value, []).append(state)
+    extra = max(len(g) for g in groups.values()) - 1
+    extra_bits = extra.bit_length()
+    codes = {state: value | i << m for value, group in groups.items()
+             for i, state in enumerate(group)}
+    return Encoding(method="outputs", width=max(1, m + extra_bits),
+                    codes=FrozenMap({s: codes[s] for s in table.states}))
 
 
 def _given(table: StateTable, mapping: Mapping[str, int | str]) -> Encoding:

@@ -10,12 +10,14 @@ from functools import cached_property, partial
 
 from fsmsynth.assign import (
     SEARCHES,
+    UNIT_DISTANCE_PENALTY,
     Scorer,
     SearchResult,
     adjacency_search,
     anneal_search,
     exhaustive_search,
     min_width,
+    transitions,
 )
 from fsmsynth.cost import DEFAULT_WEIGHTS, Cost, CostWeights, cost_of, logic_shape
 from fsmsynth.encode import Encoding, encode
@@ -23,8 +25,10 @@ from fsmsynth.equations import Equation
 from fsmsynth.errors import InvariantError, OptionError, VerificationError
 from fsmsynth.excite import excite
 from fsmsynth.frozen import FrozenMap
+from fsmsynth.hazards import GlitchReport, glitch_report, hazard_free
 from fsmsynth.invariants import InvariantCheck, check_invariants, constrain_outputs
 from fsmsynth.logic.cover import Cover, minimize_logic
+from fsmsynth.logic.cube import Cube
 from fsmsynth.logic.functions import LogicFunctions
 from fsmsynth.map.expr import Expr
 from fsmsynth.map.factor import factor
@@ -101,6 +105,24 @@ class Design:
     invariants: InvariantCheck | None = None
     mapping: Mapping_ | None = None
     two_level_cost: Cost | None = None
+    hazard_free: tuple[str, ...] = ()
+    """Outputs whose sums of products were given the consensus terms that remove static
+    hazards under single-input changes."""
+
+    @property
+    def multi_bit_steps(self) -> tuple[tuple[str, str, int], ...]:
+        """Transitions ``(state, next state, bits that change)`` of the encoded table whose
+        codes differ in more than one bit (where function hazards can happen)."""
+        codes = self.encoding.codes
+        return tuple((a, b, bin(codes[a] ^ codes[b]).count("1"))
+                     for a, b in transitions(self.encoded_table)
+                     if bin(codes[a] ^ codes[b]).count("1") > 1)
+
+    @cached_property
+    def glitches(self) -> GlitchReport:
+        """Which outputs can glitch and how (:mod:`fsmsynth.hazards`), on the two-level
+        sums of products; glitch-free outputs are named too."""
+        return glitch_report(self.encoded_table, self.encoding, self.functions, self.cover)
 
     @cached_property
     def factored(self) -> dict[str, Expr]:
@@ -163,7 +185,9 @@ def synthesize(table: StateTable, storage: StorageChoice = "d",
                seed: int = 0, budget: int | None = None, width: int | None = None,
                clock_edge: str = "rising", jobs: int = 1, time_limit: float | None = None,
                force: bool = False, target: str | Target = "two-level",
-               map_for: str = "area") -> Design:
+               map_for: str = "area",
+               outputs: str | Mapping[str, str] = "combinational",
+               unit_distance: bool = False) -> Design:
     """Synthesize ``table`` into equations and a netlist, and prove the result.
 
     Parameters
@@ -224,6 +248,11 @@ def synthesize(table: StateTable, storage: StorageChoice = "d",
         is the target's area; ``"best"`` storage then picks by that area.
     map_for:
         ``"area"`` (default) or ``"delay"``: what technology mapping minimizes.
+    outputs:
+        ``"combinational"`` (default: minimum sums of products) or ``"hazard-free"``:
+        outputs get the consensus terms that remove every static hazard under a
+        single-input change (:func:`fsmsynth.hazards.hazard_free`); or a mapping from
+        output name to one of those.  ``design.glitches`` reports what can still glitch.
 
     Raises
     ------
@@ -271,29 +300,33 @@ def synthesize(table: StateTable, storage: StorageChoice = "d",
     if reduction and isinstance(encoding, Mapping):
         encoding = {s: c for s, c in encoding.items() if s in work.states or s not in table.states}
     search: SearchResult | None = None
+    smooth = _smoothed(table, outputs)
     on = target_named(target)
     if map_for not in ("area", "delay"):
         raise OptionError(f"map for {map_for!r}: use 'area' or 'delay'")
     if isinstance(encoding, str) and encoding in SEARCHES:
         codes, search = _search(work, encoding, storage, unused, weights, logic, seed, budget,
-                                width, jobs, time_limit, force, on, map_for)
+                                width, jobs, time_limit, force, on, map_for, unit_distance)
     else:
+        if unit_distance:
+            raise OptionError("unit_distance applies to the adjacency, exhaustive and anneal "
+                              "encodings (gray already steps one bit along its numbering)")
         if width is not None:
             raise OptionError("width applies to adjacency, exhaustive and anneal encodings")
         codes = encode(work, encoding)
     if storage == "best":
         candidates = [(k,) * codes.width for k in STORAGES.values()]
         candidates.append(_cheapest_per_bit(work, codes, unused, weights, logic))
-        designs = [_mapped(_build(table, reduction, work, codes, c, unused, weights, logic),
+        designs = [_mapped(_build(table, reduction, work, codes, c, unused, weights, logic, smooth),
                            on, map_for) for c in dict.fromkeys(candidates)]
         chosen = min(designs, key=lambda d: (d.cost.total, d.cost.gate_inputs))
     elif storage == "per-bit":
         chosen = _mapped(_build(table, reduction, work, codes,
                                 _cheapest_per_bit(work, codes, unused, weights, logic), unused,
-                                weights, logic), on, map_for)
+                                weights, logic, smooth), on, map_for)
     else:
         chosen = _mapped(_build(table, reduction, work, codes, _per_bit(storage, codes.width),
-                                unused, weights, logic), on, map_for)
+                                unused, weights, logic, smooth), on, map_for)
     if clock_edge != "rising":
         chosen = replace(chosen, netlist=replace(chosen.netlist, flip_flops=tuple(
             replace(ff, edge=clock_edge) for ff in chosen.netlist.flip_flops)))
@@ -305,7 +338,8 @@ def synthesize(table: StateTable, storage: StorageChoice = "d",
 def _search(table: StateTable, method: str, storage: StorageChoice, unused: str,
             weights: CostWeights, logic: str, seed: int, budget: int | None,
             width: int | None, jobs: int, time_limit: float | None,
-            force: bool, target: Target, map_for: str) -> tuple[Encoding, SearchResult | None]:
+            force: bool, target: Target, map_for: str, unit_distance: bool = False
+            ) -> tuple[Encoding, SearchResult | None]:
     """Codes chosen by one of the searches of :mod:`fsmsynth.assign`."""
     n = len(table.states)
     k = width if width is not None else min_width(n)
@@ -327,7 +361,8 @@ def _search(table: StateTable, method: str, storage: StorageChoice, unused: str,
     # A partial of a module function, not a closure: worker processes receive the scorer.
     kinds = partial(_per_bit, "d" if storage in ("best", "per-bit") else storage)
     score = Scorer(table=table, storages=kinds, unused=unused, weights=weights, logic=logic,
-                   target=target, map_for=map_for)
+                   target=target, map_for=map_for,
+                   unit_distance=UNIT_DISTANCE_PENALTY if unit_distance else 0.0)
     started = time.perf_counter()
     if method == "adjacency":
         result = adjacency_search(score, table, k, jobs=jobs, time_limit=time_limit)
@@ -382,9 +417,24 @@ def _cheapest_per_bit(table: StateTable, codes: Encoding, unused: str, weights: 
 
 def _build(table: StateTable, reduction: StateMinimization | None, work: StateTable,
            codes: Encoding, storages: tuple[Storage, ...], unused: str, weights: CostWeights,
-           logic: str) -> Design:
+           logic: str, smooth: tuple[str, ...] = ()) -> Design:
     functions = excite(work, codes, storages, unused=unused)
     cover = minimize_logic(functions, weights, logic)
+    if codes.method == "outputs":
+        # Output j is state bit j on every used code: a wire from flip-flop j.
+        terms = list(cover.terms)
+        for j, name in enumerate(work.outputs):
+            terms[cover.names.index(name)] = (Cube(care=1 << j, value=1 << j),)
+        cover = replace(cover, terms=tuple(terms))
+    if smooth:
+        n = len(cover.variables)
+        inputs = list(range(codes.width, n))
+        terms = list(cover.terms)
+        for name in smooth:
+            f = functions.function(name)
+            at = cover.names.index(name)
+            terms[at] = hazard_free(cover.terms[at], f.on, f.off, inputs, n)
+        cover = replace(cover, terms=tuple(terms))
     equations = {name: Equation(signal=name, variables=cover.variables, terms=terms)
                  for name, terms in zip(cover.names, cover.terms)}
     netlist = build_netlist(table.name, table.inputs, table.outputs, cover, storages,
@@ -395,7 +445,37 @@ def _build(table: StateTable, reduction: StateMinimization | None, work: StateTa
     cost = cost_of(logic_shape(cover.terms), flip_flops, weights)
     return Design(table=table, minimization=reduction, storages=storages, encoding=codes,
                   unused=unused, functions=functions, cover=cover, equations=equations,
-                  netlist=netlist, cost=cost, verification=None)
+                  netlist=netlist, cost=cost, verification=None, hazard_free=smooth)
+
+
+OUTPUT_KINDS = ("combinational", "hazard-free")
+
+
+def _smoothed(table: StateTable, outputs: str | Mapping[str, str]) -> tuple[str, ...]:
+    """The output bits to make hazard-free (a vector output names all its bits)."""
+    if isinstance(outputs, str):
+        outputs = dict.fromkeys(ports_of_names(table.outputs), outputs)
+    if not isinstance(outputs, Mapping):
+        raise OptionError(f"outputs {outputs!r}: give 'combinational', 'hazard-free' or a "
+                          "dict of output -> one of them")
+    chosen: list[str] = []
+    ports = ports_of_names(table.outputs)
+    for name, kind in outputs.items():
+        if kind not in OUTPUT_KINDS:
+            raise OptionError(f"outputs of {name!r}: {kind!r}; use one of "
+                              f"{', '.join(OUTPUT_KINDS)}")
+        if name not in ports:
+            raise OptionError(f"outputs: unknown output {name!r} (outputs: "
+                              f"{', '.join(ports) or 'none'})")
+        if kind == "hazard-free":
+            chosen += ports[name]
+    return tuple(b for b in table.outputs if b in chosen)
+
+
+def ports_of_names(names: Sequence[str]) -> dict[str, list[str]]:
+    """Each output port and its bits (a 1-bit port is its own bit)."""
+    from fsmsynth.names import port_bits, ports_of
+    return {port: port_bits(port, width) for port, width in ports_of(names)}
 
 
 def _mapped(design: Design, target: Target, goal: str) -> Design:
