@@ -32,7 +32,7 @@ from fsmsynth.logic.cube import Cube
 from fsmsynth.logic.functions import LogicFunctions
 from fsmsynth.map.expr import Expr
 from fsmsynth.map.factor import factor
-from fsmsynth.map.realize import Mapping_, map_design
+from fsmsynth.map.realize import MappedDesign, map_design
 from fsmsynth.netlist import EDGES, Netlist, build_netlist
 from fsmsynth.reduce import StateMinimization, minimize_states
 from fsmsynth.storage import STORAGES, Storage, storage_named
@@ -103,7 +103,7 @@ class Design:
     verification: Verification | None
     assignment: SearchResult | None = None
     invariants: InvariantCheck | None = None
-    mapping: Mapping_ | None = None
+    mapping: MappedDesign | None = None
     two_level_cost: Cost | None = None
     hazard_free: tuple[str, ...] = ()
     """Outputs whose sums of products were given the consensus terms that remove static

@@ -63,8 +63,7 @@ class ArrayFit:
                          for signal, extra in self.splits]
 
 
-def fit_array(cover: Cover, storages: Sequence[Storage], outputs: Sequence[str], limit: int,
-              converted: Sequence[int],
+def fit_array(cover: Cover, storages: Sequence[Storage], limit: int, converted: Sequence[int],
               characteristic_sop: Callable[[Storage], tuple[Cube, ...]]
               ) -> tuple[ArrayFit, list[Gate], dict[str, str]]:
     """Gates of the array (ANDs of the plane, ORs of the outputs), the net of every signal,
@@ -139,7 +138,6 @@ def fit_array(cover: Cover, storages: Sequence[Storage], outputs: Sequence[str],
         signal_net[f"D{b}"] = place(f"D{b}", characteristic_sop(storage), [*pins, nets[b]])
     fit = ArrayFit(limit=limit, products=sum(1 for lits in plane if lits),
                    macrocells=macrocells, widest=widest, splits=tuple(splits))
-    del outputs
     return fit, gates, signal_net
 
 

@@ -34,7 +34,7 @@ D = STORAGES["d"]
 
 
 @dataclass(frozen=True, slots=True)
-class Mapping_:
+class MappedDesign:
     """What a design became on a target.
 
     Attributes
@@ -125,7 +125,7 @@ def _graph(network: Network, cover: Cover, storages: Sequence[Storage],
 
 def map_design(name: str, inputs: Sequence[str], outputs: Sequence[str], cover: Cover,
                storages: Sequence[Storage], reset_code: int, target: Target,
-               goal: str = "area", edge: str = "rising") -> Mapping_:
+               goal: str = "area", edge: str = "rising") -> MappedDesign:
     """Build the design on ``target`` (a cell library, LUTs or a product-term array).
 
     For cells and LUTs both the functions as factored one by one and the network after
@@ -160,7 +160,7 @@ def map_design(name: str, inputs: Sequence[str], outputs: Sequence[str], cover: 
     ff_area = sum(target.flip_flops[ff.storage.name] for ff in flip_flops)
     delays = {c.name: c.delay for c in target.cells if c.name in counts}
     delays.update({name: 1.0 for name in counts if name.startswith("LUT")})
-    return Mapping_(target.name, netlist, FrozenMap(dict(sorted(counts.items()))), area,
+    return MappedDesign(target.name, netlist, FrozenMap(dict(sorted(counts.items()))), area,
                     ff_area, _depth(netlist), FrozenMap(storage_report),
                     cell_delays=FrozenMap(dict(sorted(delays.items()))))
 
@@ -280,8 +280,8 @@ def _depth(netlist: Netlist, ends: Iterable[str] | None = None) -> int:
 
 def _on_array(name: str, inputs: Sequence[str], outputs: Sequence[str], cover: Cover,
               storages: Sequence[Storage], reset_code: int, target: Target,
-              bits: Sequence[tuple[int, Storage, bool]], edge: str) -> Mapping_:
-    fit, gates, nets = fit_array(cover, storages, outputs, target.products,
+              bits: Sequence[tuple[int, Storage, bool]], edge: str) -> MappedDesign:
+    fit, gates, nets = fit_array(cover, storages, target.products,
                                  [b for b, _s, c in bits if c], characteristic_sop)
     flip_flops = _flip_flops(storages, bits, nets, reset_code, edge)
     netlist = Netlist(name=name, inputs=tuple(inputs),
@@ -300,6 +300,6 @@ def _on_array(name: str, inputs: Sequence[str], outputs: Sequence[str], cover: C
                 storage.pins)
     # Area of an array design: its macrocells (each output, fed-back signal and split
     # part uses one; registered ones hold the flip-flops), the device's resource that runs out.
-    return Mapping_(target.name, netlist, FrozenMap(counts), float(fit.macrocells - len(
+    return MappedDesign(target.name, netlist, FrozenMap(counts), float(fit.macrocells - len(
         storages)), float(len(storages)), _depth(netlist), FrozenMap(report), fit,
         FrozenMap({"PT": 1.0, "OR": 0.0}))
