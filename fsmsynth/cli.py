@@ -156,9 +156,11 @@ def _parser() -> argparse.ArgumentParser:
                        help="searched encodings: codes one bit apart across every transition "
                             "where possible (no function hazards there)")
     build.add_argument("--outputs", default="combinational",
-                       choices=("combinational", "hazard-free"),
+                       choices=("combinational", "hazard-free", "registered"),
                        help="hazard-free: add the consensus terms that remove static hazards "
-                            "of the outputs under single-input changes (default combinational)")
+                            "of the outputs under single-input changes; registered: each "
+                            "output from its own flip-flop (Mealy outputs one clock later); "
+                            "default combinational")
     build.add_argument("--unused", default="dont-care", choices=UNUSED_POLICIES,
                        help="unused state codes: don't cares, or safe (go to reset)")
     build.add_argument("--logic", default="heuristic", choices=LOGIC_METHODS,
@@ -329,7 +331,7 @@ def _build(args: argparse.Namespace) -> int:
     out = Path(args.out)
     files = {out / f"{table.name}.v": design.verilog, out / f"{table.name}.json": design.json}
     if args.testbench:
-        files[out / f"{table.name}_tb.v"] = write_testbench(table)
+        files[out / f"{table.name}_tb.v"] = write_testbench(design.reference)
     if args.check:
         stale = [str(p) for p, text in files.items()
                  if not p.is_file() or p.read_bytes() != text.encode("utf-8")]

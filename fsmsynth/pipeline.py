@@ -35,6 +35,7 @@ from fsmsynth.map.factor import factor
 from fsmsynth.map.realize import MappedDesign, map_design
 from fsmsynth.netlist import EDGES, Netlist, build_netlist
 from fsmsynth.reduce import StateMinimization, minimize_states
+from fsmsynth.registered import delayed_machine, registered_codes
 from fsmsynth.storage import STORAGES, Storage, storage_named
 from fsmsynth.table import StateTable
 from fsmsynth.targets import Target, target_named
@@ -105,6 +106,10 @@ class Design:
     invariants: InvariantCheck | None = None
     mapping: MappedDesign | None = None
     two_level_cost: Cost | None = None
+    registered: StateTable | None = None
+    """With registered outputs, the machine that was encoded: the (reduced) table itself for
+    a Moore machine, its delayed machine (:func:`fsmsynth.registered.delayed_machine`) for a
+    Mealy one."""
     hazard_free: tuple[str, ...] = ()
     """Outputs whose sums of products were given the consensus terms that remove static
     hazards under single-input changes."""
@@ -143,8 +148,19 @@ class Design:
 
     @property
     def encoded_table(self) -> StateTable:
-        """The table whose states were encoded: the reduced one, or the original."""
+        """The table whose states were encoded: the reduced one, or the original (or, with
+        registered outputs, the machine that carries them)."""
+        if self.registered is not None:
+            return self.registered
         return self.minimization.table if self.minimization else self.table
+
+    @cached_property
+    def reference(self) -> StateTable:
+        """The table the netlist is verified against, and testbenches come from: the table,
+        or for registered Mealy outputs its delayed machine (outputs one clock later)."""
+        if self.registered is not None and self.table.kind == "mealy":
+            return delayed_machine(self.table, keep_dont_cares=True)
+        return self.table
 
     @property
     def states_removed(self) -> int:
@@ -168,6 +184,10 @@ class Design:
         target = ""
         if self.mapping is not None:
             target = f"; target: {self.mapping.target}"
+        if self.registered is not None:
+            target += ("; outputs registered: each one clock after the inputs that produce "
+                       "it" if self.table.kind == "mealy" else
+                       "; outputs registered (Moore timing kept)")
         return (f"storage: {storage}; clock edge: {', '.join(edges)}; "
                 f"encoding: {self.encoding.method} ({codes}); unused codes: {self.unused}"
                 f"{target}\n"
@@ -252,7 +272,10 @@ def synthesize(table: StateTable, storage: StorageChoice = "d",
         ``"combinational"`` (default: minimum sums of products) or ``"hazard-free"``:
         outputs get the consensus terms that remove every static hazard under a
         single-input change (:func:`fsmsynth.hazards.hazard_free`); or a mapping from
-        output name to one of those.  ``design.glitches`` reports what can still glitch.
+        output name to one of those.  ``"registered"``: every output from a D flip-flop of
+        its own (:mod:`fsmsynth.registered`); Moore timing is kept, Mealy outputs come one
+        clock later, and the netlist is verified against that (``design.reference``).
+        ``design.glitches`` reports what can still glitch.
 
     Raises
     ------
@@ -314,7 +337,20 @@ def synthesize(table: StateTable, storage: StorageChoice = "d",
         if width is not None:
             raise OptionError("width applies to adjacency, exhaustive and anneal encodings")
         codes = encode(work, encoding)
-    if storage == "best":
+    if outputs == "registered":
+        if storage in ("best", "per-bit"):
+            raise OptionError("registered outputs: give one storage kind (or one per state "
+                              "bit); the output registers are D flip-flops")
+        if table.invariants and table.kind == "mealy":
+            raise OptionError("registered Mealy outputs move one clock later, so the "
+                              "invariants' timing would change: not supported yet")
+        machine = work if work.kind == "moore" else delayed_machine(work)
+        codes_r = registered_codes(machine, codes, delayed=work.kind == "mealy")
+        kinds = _per_bit(storage, codes.width) + (STORAGES["d"],) * len(work.outputs)
+        chosen = _mapped(replace(_build(table, reduction, machine, codes_r, kinds, unused,
+                                        weights, logic, (), output_offset=codes.width),
+                                 registered=machine), on, map_for)
+    elif storage == "best":
         candidates = [(k,) * codes.width for k in STORAGES.values()]
         candidates.append(_cheapest_per_bit(work, codes, unused, weights, logic))
         designs = [_mapped(_build(table, reduction, work, codes, c, unused, weights, logic, smooth),
@@ -417,14 +453,18 @@ def _cheapest_per_bit(table: StateTable, codes: Encoding, unused: str, weights: 
 
 def _build(table: StateTable, reduction: StateMinimization | None, work: StateTable,
            codes: Encoding, storages: tuple[Storage, ...], unused: str, weights: CostWeights,
-           logic: str, smooth: tuple[str, ...] = ()) -> Design:
+           logic: str, smooth: tuple[str, ...] = (), output_offset: int | None = None
+           ) -> Design:
     functions = excite(work, codes, storages, unused=unused)
     cover = minimize_logic(functions, weights, logic)
     if codes.method == "outputs":
-        # Output j is state bit j on every used code: a wire from flip-flop j.
+        output_offset = 0
+    if output_offset is not None:
+        # Output j is state bit offset + j on every used code: a wire from that flip-flop.
         terms = list(cover.terms)
         for j, name in enumerate(work.outputs):
-            terms[cover.names.index(name)] = (Cube(care=1 << j, value=1 << j),)
+            bit = output_offset + j
+            terms[cover.names.index(name)] = (Cube(care=1 << bit, value=1 << bit),)
         cover = replace(cover, terms=tuple(terms))
     if smooth:
         n = len(cover.variables)
@@ -448,11 +488,13 @@ def _build(table: StateTable, reduction: StateMinimization | None, work: StateTa
                   netlist=netlist, cost=cost, verification=None, hazard_free=smooth)
 
 
-OUTPUT_KINDS = ("combinational", "hazard-free")
+OUTPUT_KINDS = ("combinational", "hazard-free", "registered")
 
 
 def _smoothed(table: StateTable, outputs: str | Mapping[str, str]) -> tuple[str, ...]:
     """The output bits to make hazard-free (a vector output names all its bits)."""
+    if outputs == "registered":
+        return ()
     if isinstance(outputs, str):
         outputs = dict.fromkeys(ports_of_names(table.outputs), outputs)
     if not isinstance(outputs, Mapping):
@@ -464,6 +506,9 @@ def _smoothed(table: StateTable, outputs: str | Mapping[str, str]) -> tuple[str,
         if kind not in OUTPUT_KINDS:
             raise OptionError(f"outputs of {name!r}: {kind!r}; use one of "
                               f"{', '.join(OUTPUT_KINDS)}")
+        if kind == "registered":
+            raise OptionError("registered outputs apply to every output: give "
+                              "outputs='registered'")
         if name not in ports:
             raise OptionError(f"outputs: unknown output {name!r} (outputs: "
                               f"{', '.join(ports) or 'none'})")
@@ -496,7 +541,7 @@ def _mapped(design: Design, target: Target, goal: str) -> Design:
 def _proved(design: Design) -> Design:
     """The design with its verification, or VerificationError with the counterexample."""
     safe = design.encoding.unused_cubes() if design.unused == "safe" else ()
-    proof = verify(design.netlist, design.table, safe_unused=safe)
+    proof = verify(design.netlist, design.reference, safe_unused=safe)
     if not proof:
         raise VerificationError(f"{design.table.name}: {proof.summary()}", proof)
     if not design.table.invariants:
