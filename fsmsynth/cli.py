@@ -34,10 +34,12 @@ from fsmsynth.table import StateTable
 from fsmsynth.targets import Target
 from fsmsynth.timing import timing
 from fsmsynth.version import __version__
+from fsmsynth.writers.cocotb_bench import write_cocotb_bench
 from fsmsynth.writers.dot import render, suffix_format, write_netlist_dot, write_state_diagram
 from fsmsynth.writers.kmap import write_karnaugh
 from fsmsynth.writers.spec_toml import write_spec
 from fsmsynth.writers.testbench import write_testbench
+from fsmsynth.writers.vhdl import write_vhdl_testbench
 
 CAUTION = (
     "Caution: this logic is only as safe as the table it came from. Synchronise asynchronous\n"
@@ -176,7 +178,15 @@ def _parser() -> argparse.ArgumentParser:
                        help="keep every state (skip state minimization)")
     build.add_argument("-o", "--out", default="build", help="output folder (default build/)")
     build.add_argument("--testbench", action="store_true",
-                       help="also write <name>_tb.v, a self-checking testbench from the table")
+                       help="also write <name>_tb.v (and <name>_tb.vhd with --hdl vhdl), a "
+                            "self-checking testbench from the table")
+    build.add_argument("--cocotb", action="store_true",
+                       help="also write <name>_cocotb.py: the same checks and a random run "
+                            "against the table, driven from Python by cocotb (run it with "
+                            "python <name>_cocotb.py; needs pip install fsmsynth[sim])")
+    build.add_argument("--hdl", default="verilog", type=_list_arg,
+                       help="which HDL files to write: verilog, vhdl or verilog,vhdl "
+                            "(default verilog)")
     build.add_argument("--json", action="store_true", help="print a JSON report instead of text")
     build.add_argument("-q", "--quiet", action="store_true",
                        help="leave out the caution block (for build logs; the cautions still "
@@ -329,9 +339,24 @@ def _build(args: argparse.Namespace) -> int:
                         target=_target_arg(args.target), map_for=args.map_for,
                         outputs=args.outputs, unit_distance=args.unit_distance)
     out = Path(args.out)
-    files = {out / f"{table.name}.v": design.verilog, out / f"{table.name}.json": design.json}
-    if args.testbench:
+    unknown = [h for h in args.hdl if h not in ("verilog", "vhdl")]
+    if unknown or not args.hdl:
+        raise OptionError(f"--hdl {','.join(args.hdl)}: give verilog, vhdl or verilog,vhdl")
+    files: dict[Path, str] = {}
+    if "verilog" in args.hdl:
+        files[out / f"{table.name}.v"] = design.verilog
+    if "vhdl" in args.hdl:
+        files[out / f"{table.name}.vhd"] = design.vhdl
+    files[out / f"{table.name}.json"] = design.json
+    if args.testbench and "verilog" in args.hdl:
         files[out / f"{table.name}_tb.v"] = write_testbench(design.reference)
+    if args.testbench and "vhdl" in args.hdl:
+        files[out / f"{table.name}_tb.vhd"] = write_vhdl_testbench(design.reference)
+    if args.cocotb:
+        if "verilog" not in args.hdl:
+            raise OptionError("--cocotb runs the Verilog design in Icarus: keep verilog in "
+                              "--hdl")
+        files[out / f"{table.name}_cocotb.py"] = write_cocotb_bench(design.reference)
     if args.check:
         stale = [str(p) for p, text in files.items()
                  if not p.is_file() or p.read_bytes() != text.encode("utf-8")]

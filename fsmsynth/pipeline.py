@@ -42,6 +42,7 @@ from fsmsynth.targets import Target, target_named
 from fsmsynth.verify import Verification, verify
 from fsmsynth.writers.json_netlist import write_json_netlist
 from fsmsynth.writers.verilog import write_verilog
+from fsmsynth.writers.vhdl import write_vhdl
 
 UNUSED_POLICIES = ("dont-care", "safe")
 MAX_EXTRA_WIDTH = 3
@@ -140,6 +141,12 @@ class Design:
     def verilog(self) -> str:
         """Structural Verilog of the netlist."""
         return write_verilog(self.netlist, header=self.header())
+
+    @cached_property
+    def vhdl(self) -> str:
+        """Structural VHDL (IEEE 1076-2008) of the netlist; names VHDL cannot take are a
+        :class:`~fsmsynth.errors.TableError` naming them."""
+        return write_vhdl(self.netlist, header=self.header())
 
     @cached_property
     def json(self) -> str:

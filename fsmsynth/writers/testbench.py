@@ -11,6 +11,8 @@ table specifies on the way; after the transition it checks the next state's outp
 from __future__ import annotations
 
 from collections import deque
+from collections.abc import Callable
+from dataclasses import dataclass
 
 from fsmsynth.names import ports_of
 from fsmsynth.table import StateTable
@@ -34,6 +36,74 @@ def _paths(table: StateTable) -> dict[str, list[str]]:
                 paths[nxt] = paths[state] + [word]
                 queue.append(nxt)
     return paths
+
+
+Step = tuple[object, ...]
+"""``("comment", text)``, ``("reset",)``, ``("drive", word)``, ``("check", test, cycle,
+output cube)`` or ``("clock",)``."""
+
+
+def bench_steps(table: StateTable) -> list[Step]:
+    """What a bench does, in order, independent of the HDL it is written in."""
+    steps: list[Step] = []
+    n_in = len(table.inputs)
+    paths = _paths(table)
+    test = 0
+    for state in table.states:
+        if state not in paths:
+            continue
+        for _s, cube, _n, _o in table.rows_of(state):
+            for word in _fills(cube):
+                test += 1
+                steps.append(("comment", f"test {test}: state {state}, inputs {word}"))
+                steps.append(("reset",))
+                current: str | None = table.reset
+                for cycle, step in enumerate(paths[state] + [word], start=1):
+                    assert current is not None
+                    nxt, outs = table.lookup(current, step)
+                    steps += [("drive", step), ("check", test, cycle, outs), ("clock",)]
+                    current = nxt
+                if current is None:
+                    continue
+                follow = table.rows_of(current)
+                probe = follow[0][1].replace("-", "0") if follow else "0" * n_in
+                steps += [("drive", probe),
+                          ("check", test, len(paths[state]) + 2,
+                           table.lookup(current, probe)[1])]
+    return steps
+
+
+@dataclass(frozen=True, slots=True)
+class BenchSyntax:
+    """How one HDL writes each kind of bench step; each returns lines."""
+
+    comment: Callable[[str], list[str]]
+    reset: Callable[[], list[str]]
+    drive: Callable[[str], list[str]]
+    check: Callable[[int, int, str, str], list[str]]
+    """``(test, cycle, output bit name, expected value)``: one specified output."""
+    clock: Callable[[], list[str]]
+
+
+def bench_body(table: StateTable, syntax: BenchSyntax) -> list[str]:
+    """The lines of every step of :func:`bench_steps`, written in ``syntax``."""
+    lines: list[str] = []
+    for step in bench_steps(table):
+        what = step[0]
+        if what == "comment":
+            lines += syntax.comment(str(step[1]))
+        elif what == "reset":
+            lines += syntax.reset()
+        elif what == "drive":
+            lines += syntax.drive(str(step[1]))
+        elif what == "check":
+            _k, test, cycle, cube = step
+            for name, want in zip(table.outputs, str(cube)):
+                if want != "-":
+                    lines += syntax.check(int(test), int(cycle), name, want)  # type: ignore[call-overload]
+        else:
+            lines += syntax.clock()
+    return lines
 
 
 def write_testbench(table: StateTable, *, period: int = 10) -> str:
@@ -67,47 +137,19 @@ def write_testbench(table: StateTable, *, period: int = 10) -> str:
         "    initial begin",
     ]
 
-    def drive(word: str) -> None:
-        if n_in:
-            lines.append(f"        {{{', '.join(table.inputs)}}} = {n_in}'b{word};")
-        lines.append(f"        #{half - 1};")
-
-    def check(test: int, cycle: int, cube: str) -> None:
-        for name, want in zip(table.outputs, cube):
-            if want == "-":
-                continue
-            lines.append("        checks = checks + 1;")
-            lines.append(
+    def check(test: int, cycle: int, name: str, want: str) -> list[str]:
+        return ["        checks = checks + 1;",
                 f"        if ({name} !== 1'b{want}) begin errors = errors + 1; "
-                f"$display(\"MISMATCH test {test} cycle {cycle}: {name} = %b, expected {want}\", "
-                f"{name}); end")
+                f"$display(\"MISMATCH test {test} cycle {cycle}: {name} = %b, expected "
+                f"{want}\", {name}); end"]
 
-    def clock() -> None:
-        lines.append(f"        clk = 1'b1; #{half}; clk = 1'b0; #1;")
-
-    paths = _paths(table)
-    test = 0
-    for state in table.states:
-        if state not in paths:
-            continue
-        for _s, cube, _n, _o in table.rows_of(state):
-            for word in _fills(cube):
-                test += 1
-                lines.append(f"        // test {test}: state {state}, inputs {word}")
-                lines.append("        rst = 1'b1; #1; rst = 1'b0; #1;")
-                current = table.reset
-                for cycle, step in enumerate(paths[state] + [word], start=1):
-                    nxt, outs = table.lookup(current, step)
-                    drive(step)
-                    check(test, cycle, outs)
-                    clock()
-                    current = nxt  # type: ignore[assignment]
-                if current is None:
-                    continue
-                follow = table.rows_of(current)
-                probe = follow[0][1].replace("-", "0") if follow else "0" * n_in
-                drive(probe)
-                check(test, len(paths[state]) + 2, table.lookup(current, probe)[1])
+    lines += bench_body(table, BenchSyntax(
+        comment=lambda text: [f"        // {text}"],
+        reset=lambda: ["        rst = 1'b1; #1; rst = 1'b0; #1;"],
+        drive=lambda word: ([f"        {{{', '.join(table.inputs)}}} = {n_in}'b{word};"]
+                            if n_in else []) + [f"        #{half - 1};"],
+        check=check,
+        clock=lambda: [f"        clk = 1'b1; #{half}; clk = 1'b0; #1;"]))
     lines += [
         "        if (errors != 0) $fatal(1, \"FAIL: %0d of %0d checks failed\", errors, checks);",
         "        $display(\"PASS: %0d checks\", checks);",
