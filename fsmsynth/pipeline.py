@@ -33,6 +33,7 @@ from fsmsynth.logic.functions import LogicFunctions
 from fsmsynth.map.expr import Expr
 from fsmsynth.map.factor import factor
 from fsmsynth.map.realize import MappedDesign, map_design
+from fsmsynth.names import port_bits, ports_of
 from fsmsynth.netlist import EDGES, Netlist, build_netlist
 from fsmsynth.reduce import StateMinimization, minimize_states
 from fsmsynth.registered import delayed_machine, registered_codes
@@ -502,13 +503,13 @@ def _smoothed(table: StateTable, outputs: str | Mapping[str, str]) -> tuple[str,
     """The output bits to make hazard-free (a vector output names all its bits)."""
     if outputs == "registered":
         return ()
+    ports = {port: port_bits(port, width) for port, width in ports_of(table.outputs)}
     if isinstance(outputs, str):
-        outputs = dict.fromkeys(ports_of_names(table.outputs), outputs)
+        outputs = dict.fromkeys(ports, outputs)
     if not isinstance(outputs, Mapping):
         raise OptionError(f"outputs {outputs!r}: give 'combinational', 'hazard-free' or a "
                           "dict of output -> one of them")
     chosen: list[str] = []
-    ports = ports_of_names(table.outputs)
     for name, kind in outputs.items():
         if kind not in OUTPUT_KINDS:
             raise OptionError(f"outputs of {name!r}: {kind!r}; use one of "
@@ -522,12 +523,6 @@ def _smoothed(table: StateTable, outputs: str | Mapping[str, str]) -> tuple[str,
         if kind == "hazard-free":
             chosen += ports[name]
     return tuple(b for b in table.outputs if b in chosen)
-
-
-def ports_of_names(names: Sequence[str]) -> dict[str, list[str]]:
-    """Each output port and its bits (a 1-bit port is its own bit)."""
-    from fsmsynth.names import port_bits, ports_of
-    return {port: port_bits(port, width) for port, width in ports_of(names)}
 
 
 def _mapped(design: Design, target: Target, goal: str) -> Design:

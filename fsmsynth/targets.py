@@ -27,7 +27,7 @@ from fsmsynth.frozen import FrozenMap
 from fsmsynth.guards import GuardError, compile_guard
 from fsmsynth.logic import bdd
 from fsmsynth.logic.cube import Cube
-from fsmsynth.logic.sop import minimize_sop
+from fsmsynth.logic.sop import minimum_terms
 from fsmsynth.map.expr import Expr
 from fsmsynth.map.factor import factor
 from fsmsynth.names import name_problem
@@ -69,14 +69,7 @@ class Cell:
 
 
 def _minimum_sop(table: int, n: int) -> tuple[Cube, ...]:
-    on = [m for m in range(1 << n) if table >> m & 1]
-    if len(on) == 1 << n:
-        return (Cube.universe(),)
-    if not on:
-        return ()
-    # minimize_sop numbers minterms with the first variable most significant.
-    numbers = [sum((m >> i & 1) << (n - 1 - i) for i in range(n)) for m in on]
-    return tuple(Cube.from_string(t) for t in minimize_sop(n, numbers).terms)
+    return minimum_terms(n, (m for m in range(1 << n) if table >> m & 1))
 
 
 def truth_table(function: str, pins: Sequence[str]) -> int:

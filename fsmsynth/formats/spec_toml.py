@@ -191,37 +191,9 @@ class _Lines:
                     return n
         return self.row(index, name, "{") if seen < 0 else None
 
-    def element(self, key: str, index: int) -> int | None:
-        """Line of string ``index`` of the top-level array of strings ``key``."""
-        start = self.key(key)
-        if start is None:
-            return None
-        offset = sum(len(line) + 1 for line in self.lines[:start - 1])
-        text, line, i, seen = self.text, start, offset + self.lines[start - 1].index("="), -1
-        while i < len(text):
-            ch = text[i]
-            if ch == "\n":
-                line += 1
-            elif ch == "#":
-                while i < len(text) and text[i] != "\n":
-                    i += 1
-                continue
-            elif ch in "\"'":
-                seen += 1
-                if seen == index:
-                    return line
-                end = _skip_string(text, i)
-                line += text[i:end].count("\n")
-                i = end
-                continue
-            elif ch == "]":
-                return start
-            i += 1
-        return start
-
     def row(self, index: int, key: str = "rows", opener: str = "[") -> int | None:
         """Line where element ``index`` of the top-level array ``key`` starts (elements are
-        arrays, or inline tables with ``opener="{"``)."""
+        arrays, inline tables with ``opener="{"``, or strings with ``opener='"'``)."""
         start = self.key(key)
         if start is None:
             return None
@@ -237,7 +209,13 @@ class _Lines:
                     i += 1
                 continue
             elif ch in "\"'":
-                i = _skip_string(text, i)
+                if opener == '"' and depth == 1:
+                    seen += 1
+                    if seen == index:
+                        return line
+                end = _skip_string(text, i)
+                line += text[i:end].count("\n")  # a multi-line string
+                i = end
                 continue
             elif ch in "[{":
                 depth += 1
@@ -256,7 +234,8 @@ class _Lines:
         """Best line for a table error."""
         found = _INVARIANT.match(exc.message)
         if found:
-            return self.element("invariants", int(found.group(1)) - 1)
+            return (self.row(int(found.group(1)) - 1, "invariants", '"')
+                    or self.key("invariants"))
         if exc.row is not None:
             return self.row(exc.row)
         if exc.message.startswith("kind "):

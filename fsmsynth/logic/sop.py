@@ -7,13 +7,14 @@ significant bit (with three variables a, b, c, minterm 6 is a = 1, b = 1, c = 0)
 from __future__ import annotations
 
 import math
-from collections.abc import Sequence
+from collections.abc import Iterable, Sequence
 from dataclasses import dataclass
 
 import sympy
 
 from fsmsynth.errors import OptionError
 from fsmsynth.logic.cover import EXACT_MAX_VARIABLES
+from fsmsynth.logic.cube import Cube
 from fsmsynth.logic.exact import exact_cover, heuristic_cover, petrick_cover
 
 METHODS = ("exact", "heuristic", "petrick")
@@ -78,6 +79,18 @@ class SopCover:
 
 def _default_names(n: int) -> list[str]:
     return [chr(ord("a") + i) for i in range(n)] if n <= 26 else [f"x{i}" for i in range(n)]
+
+
+def minimum_terms(n: int, on: Iterable[int], dc: Iterable[int] = ()) -> tuple[Cube, ...]:
+    """A proven minimum sum of products of a function given by points (bit ``i`` of a
+    point is variable ``i``), as cubes: ``()`` for 0, the universe cube for 1."""
+    on_set = set(on)
+    dc_set = set(dc) - on_set
+    if len(on_set | dc_set) == 1 << n and on_set:
+        return (Cube.universe(),)
+    if not on_set:
+        return ()
+    return exact_cover(n, [on_set], [dc_set]).products
 
 
 def _to_point(minterm: int, n: int) -> int:

@@ -17,7 +17,7 @@ from dataclasses import dataclass
 from fsmsynth.frozen import FrozenMap
 from fsmsynth.logic.cover import Cover
 from fsmsynth.logic.cube import Cube
-from fsmsynth.logic.sop import minimize_sop
+from fsmsynth.logic.sop import minimum_terms
 from fsmsynth.map import cells as cellmap
 from fsmsynth.map.expr import Expr
 from fsmsynth.map.factor import factor
@@ -85,15 +85,13 @@ def characteristic_sop(storage: Storage) -> tuple[Cube, ...]:
     (a D flip-flop fed this is the storage kind)."""
     n = len(storage.pins) + 1
     on, dc = [], []
-    for m in range(1 << n):
+    for m in range(1 << n):  # bit i of m: pin i, then Q
         pins = {p: m >> i & 1 for i, p in enumerate(storage.pins)}
-        q = m >> (n - 1) & 1
-        number = sum((m >> i & 1) << (n - 1 - i) for i in range(n))
         if storage.forbidden(pins) & 1:
-            dc.append(number)
-        elif storage.next_state(q, pins, 1) & 1:
-            on.append(number)
-    return tuple(Cube.from_string(t) for t in minimize_sop(n, on, dc).terms)
+            dc.append(m)
+        elif storage.next_state(m >> (n - 1) & 1, pins, 1) & 1:
+            on.append(m)
+    return minimum_terms(n, on, dc)
 
 
 def _bits(storages: Sequence[Storage], target: Target) -> list[tuple[int, Storage, bool]]:
