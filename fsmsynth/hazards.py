@@ -131,20 +131,30 @@ def _sop_bdd(terms: Sequence[Cube], var: Sequence[Any]) -> Any:
     return result
 
 
+def _adjacent_on(on: Sequence[Cube], variables: Sequence[int], var: Sequence[Any]
+                 ) -> dict[int, Any]:
+    """Per variable, the points where flipping it keeps the function in ``on``."""
+    f = _sop_bdd(on, var)
+    return {v: f.restrict({var[v]: 0}) & f.restrict({var[v]: 1}) for v in variables}
+
+
+def _uncovered(terms: Sequence[Cube], adjacent: dict[int, Any], var: Sequence[Any]
+               ) -> dict[int, Any]:
+    """The adjacent on-pairs no single product of ``terms`` holds, per variable."""
+    found = {}
+    for v, both in adjacent.items():
+        hazard = both & ~_sop_bdd([t for t in terms if not t.care >> v & 1], var)
+        if not hazard.is_zero():
+            found[v] = hazard
+    return found
+
+
 def static_hazards(terms: Sequence[Cube], on: Sequence[Cube], variables: Sequence[int],
                    var: Sequence[Any]) -> dict[int, Any]:
     """For each variable index in ``variables``, the BDD (over the other variables) of the
     points where flipping it keeps the function on (both points in ``on``) and no product
     of ``terms`` holds it across the change."""
-    f = _sop_bdd(on, var)
-    found = {}
-    for v in variables:
-        both = f.restrict({var[v]: 0}) & f.restrict({var[v]: 1})
-        held = _sop_bdd([t for t in terms if not t.care >> v & 1], var)
-        hazard = both & ~held
-        if not hazard.is_zero():
-            found[v] = hazard
-    return found
+    return _uncovered(terms, _adjacent_on(on, variables, var), var)
 
 
 def hazard_free(terms: Sequence[Cube], on: Sequence[Cube], off: Sequence[Cube],
@@ -154,9 +164,10 @@ def hazard_free(terms: Sequence[Cube], on: Sequence[Cube], off: Sequence[Cube],
     ``off``."""
     var = bdd.variables(n)
     off_bdd = _sop_bdd(off, var)
+    adjacent = _adjacent_on(on, variables, var)  # fixed by the function: computed once
     result = list(dict.fromkeys(terms))
     while True:
-        hazards = static_hazards(result, on, variables, var)
+        hazards = _uncovered(result, adjacent, var)
         if not hazards:
             return tuple(sorted(result))
         v, region = min(hazards.items())
