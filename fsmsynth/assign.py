@@ -480,15 +480,14 @@ def _score_all(score: Scorer, candidates: Iterator[tuple[int, ...]], width: int,
 
 def _stop_pool(pool: ProcessPoolExecutor) -> None:
     """Cancel what is queued and end the worker processes now, leaving none behind."""
-    def workers() -> list[Any]:
-        return list((getattr(pool, "_processes", None) or {}).values())
-
-    processes = workers()
+    # shutdown() drops the pool's references to its workers and to the manager thread that
+    # starts them, so both are taken first: the dict is the one the pool keeps filling.
+    processes: dict[int, Any] = getattr(pool, "_processes", None) or {}
+    manager = getattr(pool, "_executor_manager_thread", None)
     pool.shutdown(wait=False, cancel_futures=True)
-    # The pool may start a worker while it is being shut down: look again after the first
-    # round, and stop whatever is still alive.
+
     def stop_alive() -> list[Any]:
-        alive = [p for p in dict.fromkeys(processes + workers()) if p.is_alive()]
+        alive = [p for p in list(processes.values()) if p.is_alive()]
         for process in alive:
             process.terminate()
         for process in alive:
@@ -499,12 +498,9 @@ def _stop_pool(pool: ProcessPoolExecutor) -> None:
         return alive
 
     for _round in range(3):
-        alive = stop_alive()
-        if not alive:
+        if not stop_alive():
             break
-        processes = alive
-    # The pool's manager thread starts workers; once it has ended, none can appear.
-    manager = getattr(pool, "_executor_manager_thread", None)
+    # Once the manager thread has ended, no worker can appear.
     if manager is not None:
         manager.join(timeout=5)
     stop_alive()

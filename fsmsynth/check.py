@@ -12,6 +12,7 @@ from dataclasses import dataclass
 
 from fsmsynth.guards import guard_text
 from fsmsynth.logic.cube import Cube, sharp
+from fsmsynth.logic.engine_lock import exclusive
 from fsmsynth.table import StateTable
 
 
@@ -74,6 +75,7 @@ def reachable_states(table: StateTable) -> tuple[str, ...]:
     return tuple(s for s in table.states if s in seen)
 
 
+@exclusive
 def check_table(table: StateTable) -> TableReport:
     """Report what ``table`` leaves unspecified.  Cost: O(rows^2 x inputs) in the worst case."""
     reachable = reachable_states(table)

@@ -11,6 +11,7 @@ from collections.abc import Mapping
 from dataclasses import dataclass
 
 from fsmsynth.equations import Equation
+from fsmsynth.logic.engine_lock import exclusive
 from fsmsynth.pipeline import Design, synthesize
 from fsmsynth.storage import Storage, storage_named
 from fsmsynth.table import StateTable
@@ -42,6 +43,7 @@ def characteristic_machine(kind: Storage) -> StateTable:
                                 state_outputs={"q0": "0", "q1": "1"})
 
 
+@exclusive
 def convert_storage(target: str | Storage, using: str | Storage, *,
                     logic: str = "exact") -> StorageConversion:
     """The logic to realize ``target`` with a ``using`` cell (for example T from JK).

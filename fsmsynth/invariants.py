@@ -39,6 +39,7 @@ from typing import Any
 from fsmsynth.guards import GuardError, compile_condition, compile_guard
 from fsmsynth.logic import bdd
 from fsmsynth.logic.cube import Cube
+from fsmsynth.logic.engine_lock import exclusive
 from fsmsynth.names import ports_of
 from fsmsynth.netlist import Netlist
 from fsmsynth.regions import state_regions
@@ -209,6 +210,7 @@ def _specified(on: Sequence[Any], off: Sequence[Any], point: Any) -> str:
     return "".join(chars)
 
 
+@exclusive
 def check_invariants(table: StateTable, netlist: Netlist | None = None) -> InvariantCheck:
     """Prove ``table.invariants`` on the table, or on ``netlist`` (which realizes it).
 
@@ -312,6 +314,7 @@ def _check_netlist(table: StateTable, netlist: Netlist, signals: _Signals,
     return InvariantCheck(table.invariants, len(parent), "netlist")
 
 
+@exclusive
 def constrain_outputs(table: StateTable) -> StateTable:
     """``table`` with the don't-care output bits fixed where a value could break an invariant.
 

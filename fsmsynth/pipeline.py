@@ -29,6 +29,7 @@ from fsmsynth.hazards import GlitchReport, glitch_report, hazard_free
 from fsmsynth.invariants import InvariantCheck, check_invariants, constrain_outputs
 from fsmsynth.logic.cover import Cover, minimize_logic
 from fsmsynth.logic.cube import Cube
+from fsmsynth.logic.engine_lock import exclusive
 from fsmsynth.logic.functions import LogicFunctions
 from fsmsynth.map.expr import Expr
 from fsmsynth.map.factor import factor
@@ -126,12 +127,14 @@ class Design:
                      if bin(codes[a] ^ codes[b]).count("1") > 1)
 
     @cached_property
+    @exclusive
     def glitches(self) -> GlitchReport:
         """Which outputs can glitch and how (:mod:`fsmsynth.hazards`), on the two-level
         sums of products; glitch-free outputs are named too."""
         return glitch_report(self.encoded_table, self.encoding, self.functions, self.cover)
 
     @cached_property
+    @exclusive
     def factored(self) -> dict[str, Expr]:
         """Each signal's cover in factored (multi-level) form (:mod:`fsmsynth.map.factor`),
         over ``cover.variables``; ``expr.text(design.cover.variables)`` prints it and
@@ -206,6 +209,7 @@ class Design:
 StorageChoice = str | Storage | Sequence[str | Storage] | Mapping[int, str | Storage]
 
 
+@exclusive
 def synthesize(table: StateTable, storage: StorageChoice = "d",
                encoding: str | Mapping[str, int | str] = "binary", *,
                unused: str = "dont-care", weights: CostWeights = DEFAULT_WEIGHTS,

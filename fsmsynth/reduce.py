@@ -35,6 +35,7 @@ from fsmsynth.errors import OptionError
 from fsmsynth.frozen import FrozenMap
 from fsmsynth.logic import bdd
 from fsmsynth.logic.cube import Cube, bits_of, partition, partition_within
+from fsmsynth.logic.engine_lock import exclusive
 from fsmsynth.regions import StateRegions, completely_specified, state_regions
 from fsmsynth.table import Row, StateTable
 
@@ -237,6 +238,7 @@ def _reachable(rows: _RowArrays, n: int, start: int) -> np.ndarray:
     return mask
 
 
+@exclusive
 def minimize_states(table: StateTable, reachable_only: bool = True, *,
                     time_limit: float = 10.0) -> StateMinimization:
     """The smallest table that realizes ``table``, with the classes of merged states.

@@ -14,6 +14,7 @@ from typing import Literal
 from fsmsynth.errors import TableError
 from fsmsynth.frozen import FrozenMap
 from fsmsynth.logic.cube import Cube
+from fsmsynth.logic.engine_lock import exclusive
 from fsmsynth.names import name_problem, ports_of, vector_problem
 
 Kind = Literal["mealy", "moore"]
@@ -157,6 +158,7 @@ class StateTable:
         return table
 
     @classmethod
+    @exclusive
     def from_transitions(
         cls,
         *,

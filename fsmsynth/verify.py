@@ -30,12 +30,13 @@ from dataclasses import dataclass, replace
 from functools import reduce
 from typing import Any, TypeVar
 
-from pyeda.boolalg import picosat
 from pyeda.boolalg.bdd import BDDONE
 
 from fsmsynth.errors import NetlistError, OptionError
 from fsmsynth.logic import bdd
 from fsmsynth.logic.cube import Cube, partition_within
+from fsmsynth.logic.engine_lock import exclusive
+from fsmsynth.logic.sat import Solver
 from fsmsynth.netlist import FlipFlop, Netlist, checked_netlist
 from fsmsynth.regions import state_regions
 from fsmsynth.table import StateTable
@@ -229,6 +230,7 @@ def _input_classes(table: StateTable, netlist: Netlist) -> list[Cube] | None:
     return partition_within(cubes, LOCAL_ABOVE)
 
 
+@exclusive
 def verify(netlist: Any, table: Any = None, *,
            safe_unused: Sequence[int] | Sequence[Cube] | None = None) -> Verification:
     """Prove that ``netlist`` realizes ``table`` from reset, or find the shortest counterexample.
@@ -467,9 +469,10 @@ class _Clauses:
     """A netlist as clauses for a SAT solver (Tseitin 1968): one variable per net.
 
     Questions about every code and input at once ("can S and R both be 1 anywhere?") are
-    answered by picosat (bundled with pyeda) on this encoding, whose size is the netlist's;
-    a BDD over every state bit and every input can instead grow exponentially (one-hot
-    logic, for one).  Variables ``1 .. width`` are the state bits, then the inputs.
+    answered by PicoSAT (bundled with pyeda; :mod:`fsmsynth.logic.sat`) on this encoding,
+    whose size is the netlist's; a BDD over every state bit and every input can instead
+    grow exponentially (one-hot logic, for one).  Variables ``1 .. width`` are the state
+    bits, then the inputs.
     """
 
     def __init__(self, netlist: Netlist) -> None:
@@ -482,6 +485,14 @@ class _Clauses:
             ins = [self.var[i] for i in g.inputs]
             self.var[g.output] = (self._table(g.table, ins) if g.table is not None
                                   else self._gate(g.kind, ins))
+        self._solver = Solver()
+        self._sent = 0
+
+    def __enter__(self) -> _Clauses:
+        return self
+
+    def __exit__(self, *exc: object) -> None:
+        self._solver.close()
 
     def fresh(self) -> int:
         self.count += 1
@@ -538,11 +549,13 @@ class _Clauses:
 
     def solve(self, *units: int) -> tuple[int, str] | None:
         """(code, input word) of a point where every literal of ``units`` holds, or None."""
-        found = picosat.satisfy_one(self.count, [*self.clauses, *((u,) for u in units)])
+        self._solver.add(self.clauses[self._sent:])
+        self._sent = len(self.clauses)
+        netlist = self.netlist
+        found = self._solver.solve(units, netlist.width + len(netlist.inputs))
         if found is None:
             return None
         true = {lit for lit in found if lit > 0}
-        netlist = self.netlist
         code = sum(1 << b for b in range(netlist.width) if b + 1 in true)
         word = "".join("1" if netlist.width + j + 1 in true else "0"
                        for j in range(len(netlist.inputs)))
@@ -553,33 +566,33 @@ def _exclusive_anywhere(netlist: Netlist) -> Counterexample | None:
     """Exclusive pins both 1 at any code and input at all (unused codes included)."""
     if not any(ff.storage.exclusive for ff in netlist.flip_flops):
         return None
-    cnf = _Clauses(netlist)
-    for ff in netlist.flip_flops:
-        for a, b in ff.storage.exclusive:
-            found = cnf.solve(cnf.var[ff.pin_net(a)], cnf.var[ff.pin_net(b)])
-            if found is not None:
-                return Counterexample((found[1],), (), f"{a}{ff.bit}/{b}{ff.bit}",
-                                      "not both 1", "both 1", start_code=found[0])
+    with _Clauses(netlist) as cnf:
+        for ff in netlist.flip_flops:
+            for a, b in ff.storage.exclusive:
+                found = cnf.solve(cnf.var[ff.pin_net(a)], cnf.var[ff.pin_net(b)])
+                if found is not None:
+                    return Counterexample((found[1],), (), f"{a}{ff.bit}/{b}{ff.bit}",
+                                          "not both 1", "both 1", start_code=found[0])
     return None
 
 
 def _unsafe_unused(netlist: Netlist, codes: Sequence[int] | Sequence[Cube]
                    ) -> Counterexample | None:
     """An unused code and input from which the next code is not the reset code."""
-    cnf = _Clauses(netlist)
-    terms = []
-    for code in codes:
-        cube = code if isinstance(code, Cube) else Cube.minterm(code, netlist.width)
-        terms.append(cnf.conj([v + 1 if positive else -(v + 1)
-                               for v, positive in cube.literals()]))
-    unused = cnf.disj(terms)
-    for ff in netlist.flip_flops:
-        nxt = cnf.next_state(ff)
-        found = cnf.solve(unused, -nxt if ff.reset_value else nxt)
-        if found is not None:
-            return Counterexample((found[1],), (), f"Q{ff.bit} after one clock",
-                                  str(ff.reset_value), str(1 - ff.reset_value),
-                                  start_code=found[0])
+    with _Clauses(netlist) as cnf:
+        terms = []
+        for code in codes:
+            cube = code if isinstance(code, Cube) else Cube.minterm(code, netlist.width)
+            terms.append(cnf.conj([v + 1 if positive else -(v + 1)
+                                   for v, positive in cube.literals()]))
+        unused = cnf.disj(terms)
+        for ff in netlist.flip_flops:
+            nxt = cnf.next_state(ff)
+            found = cnf.solve(unused, -nxt if ff.reset_value else nxt)
+            if found is not None:
+                return Counterexample((found[1],), (), f"Q{ff.bit} after one clock",
+                                      str(ff.reset_value), str(1 - ff.reset_value),
+                                      start_code=found[0])
     return None
 
 

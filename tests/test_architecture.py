@@ -9,9 +9,10 @@ PACKAGE = Path(__file__).resolve().parent.parent / "fsmsynth"
 
 RANK = {
     "fsmsynth.version": 0, "fsmsynth.frozen": 0, "fsmsynth.errors": 0, "fsmsynth.names": 0,
-    "fsmsynth.logic.cube": 0,
+    "fsmsynth.logic.cube": 0, "fsmsynth.logic.engine_lock": 0,
     "fsmsynth.table": 1, "fsmsynth.storage": 1, "fsmsynth.cost": 1,
     "fsmsynth.pipeline": 4, "fsmsynth.compare": 4, "fsmsynth.convert": 4,
+    "fsmsynth.project": 4, "fsmsynth.sweep": 4,
     "fsmsynth.cli": 5, "fsmsynth": 6,
 }
 

@@ -13,6 +13,7 @@ from collections.abc import Sequence
 from pyeda.boolalg.espresso import FTYPE, RTYPE, espresso, set_config
 
 from fsmsynth.logic.cube import Cube
+from fsmsynth.logic.engine_lock import LOCK
 
 # pyeda's positional cube notation: 1 = complemented literal, 2 = positive, 3 = absent.
 _ZERO, _ONE, _FREE = 1, 2, 3
@@ -140,8 +141,9 @@ def espresso_cover(n_vars: int, on_sets: Sequence[Sequence[Cube]],
                 assert vec[f] in (_OUT_FREE, mark), "on-set and off-set intersect"
                 vec[f] = mark
     cover = sorted((key, tuple(out)) for key, out in rows.items())
-    _restore_first_call_state()
-    result = _run(n_vars, m, cover)
+    with LOCK:  # the probe, the reset and the run, with no other run between them
+        _restore_first_call_state()
+        result = _run(n_vars, m, cover)
     terms: list[list[Cube]] = [[] for _ in range(m)]
     for invec, outvec in sorted(result):
         cube = _from_positional(invec)

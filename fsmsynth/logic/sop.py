@@ -15,6 +15,7 @@ import sympy
 from fsmsynth.errors import OptionError
 from fsmsynth.logic.cover import EXACT_MAX_VARIABLES
 from fsmsynth.logic.cube import Cube
+from fsmsynth.logic.engine_lock import exclusive
 from fsmsynth.logic.exact import exact_cover, heuristic_cover, petrick_cover
 
 METHODS = ("exact", "heuristic", "petrick")
@@ -98,6 +99,7 @@ def _to_point(minterm: int, n: int) -> int:
     return sum(1 << i for i in range(n) if minterm >> (n - 1 - i) & 1)
 
 
+@exclusive
 def minimize_sop(n_inputs: int, on: Sequence[int] | Sequence[Sequence[int]],
                  dc: Sequence[int] | Sequence[Sequence[int]] = (), method: str = "exact",
                  *, time_limit: float = 10.0) -> SopCover:
