@@ -10,10 +10,13 @@ import math
 import os
 import signal
 import sys
-from collections.abc import Sequence
+from collections import Counter
+from collections.abc import Callable, Sequence
+from concurrent.futures import Executor, ProcessPoolExecutor
 from dataclasses import replace
 from pathlib import Path
 
+from fsmsynth.build_options import BuildOptions
 from fsmsynth.check import check_table
 from fsmsynth.compare import DEFAULT_ENCODINGS, DEFAULT_STORAGES, compare
 from fsmsynth.convert import convert_storage
@@ -24,22 +27,29 @@ from fsmsynth.formats import read_table
 from fsmsynth.formats.cells_toml import read_cells
 from fsmsynth.formats.csv_table import SETTINGS
 from fsmsynth.formats.delays_toml import read_delays
+from fsmsynth.formats.project_toml import read_project
 from fsmsynth.formats.weights_toml import read_weights
+from fsmsynth.frozen import FrozenMap
 from fsmsynth.invariants import check_invariants, constrain_outputs, kept_by_reduction
 from fsmsynth.logic.cover import METHODS as LOGIC_METHODS
 from fsmsynth.pipeline import UNUSED_POLICIES, Design, synthesize
+from fsmsynth.project import (
+    DesignOutcome,
+    build_project,
+    design_files,
+    outcome_line,
+    synthesize_with,
+)
 from fsmsynth.reduce import StateMinimization, minimize_states
 from fsmsynth.storage import STORAGES
+from fsmsynth.sweep import sweep
 from fsmsynth.table import StateTable
 from fsmsynth.targets import Target
 from fsmsynth.timing import timing
 from fsmsynth.version import __version__
-from fsmsynth.writers.cocotb_bench import write_cocotb_bench
 from fsmsynth.writers.dot import render, suffix_format, write_netlist_dot, write_state_diagram
 from fsmsynth.writers.kmap import write_karnaugh
 from fsmsynth.writers.spec_toml import write_spec
-from fsmsynth.writers.testbench import write_testbench
-from fsmsynth.writers.vhdl import write_vhdl_testbench
 
 CAUTION = (
     "Caution: this logic is only as safe as the table it came from. Synchronise asynchronous\n"
@@ -257,7 +267,137 @@ def _parser() -> argparse.ArgumentParser:
     check.add_argument("spec", help="state table: .toml spec or .csv table")
     _table_settings(check)
     check.add_argument("--json", action="store_true", help="print a JSON report instead of text")
+    many = sub.add_parser("build-all", help="build every spec of a project file, in parallel, "
+                          "rebuilding only what changed")
+    many.add_argument("project", nargs="?", default="fsmsynth.toml",
+                      help="project file (default fsmsynth.toml)")
+    _cluster_options(many, "designs")
+    many.add_argument("--check", action="store_true",
+                      help="write nothing; exit 1 naming every design whose files are missing "
+                           "or differ from what its spec gives now")
+    many.add_argument("--rebuild", action="store_true",
+                      help="build every design, changed or not")
+    many.add_argument("-q", "--quiet", action="store_true", help="leave out the caution block")
+
+    sw = sub.add_parser("sweep", help="every spec of a project x storage x encoding x target: "
+                        "cost and proof, as CSV or JSON")
+    sw.add_argument("project", nargs="?", default="fsmsynth.toml",
+                    help="project file (default fsmsynth.toml)")
+    _cluster_options(sw, "designs")
+    sw.add_argument("--storages", type=_list_arg,
+                    help="comma-separated (default: the project's [sweep] list, else d)")
+    sw.add_argument("--encodings", type=_list_arg,
+                    help="comma-separated (default: the project's [sweep] list, else binary)")
+    sw.add_argument("--targets", type=_list_arg,
+                    help="comma-separated: built-in names or cell library .toml files "
+                         "(default: the project's [sweep] list, else two-level)")
+    sw.add_argument("--csv", help="write the rows to this CSV file")
+    sw.add_argument("--json", help="write the rows to this JSON file")
+    sw.add_argument("--times", action="store_true",
+                    help="add each design's wall time to the files (then two runs differ)")
+    sw.add_argument("--progress", action=argparse.BooleanOptionalAction, default=None,
+                    help="progress bar on standard error (default: when it is a terminal)")
     return parser
+
+
+def _cluster_options(command: argparse.ArgumentParser, what: str) -> None:
+    command.add_argument("--jobs", type=_positive, default=None,
+                         help=f"worker processes for the {what} (default: the cores)")
+    command.add_argument("--scheduler", metavar="ADDRESS",
+                         help="run on a Dask distributed cluster at ADDRESS (tcp://host:8786); "
+                              "needs pip install fsmsynth[cluster]")
+
+
+def _executor(args: argparse.Namespace) -> tuple[Executor | None, Callable[[], None]]:
+    """The executor of --scheduler or --jobs, and how to close it."""
+    if args.scheduler:
+        try:
+            from distributed import Client
+        except ImportError:
+            raise OptionError("--scheduler needs Dask distributed: pip install "
+                              "fsmsynth[cluster]") from None
+        try:
+            client = Client(args.scheduler, timeout=30)  # type: ignore[no-untyped-call]
+        except (OSError, TimeoutError) as exc:
+            raise OptionError(f"--scheduler {args.scheduler}: cannot reach the scheduler "
+                              f"({exc})") from None
+        return client.get_executor(), client.close  # type: ignore[no-untyped-call]
+    jobs = args.jobs or os.cpu_count() or 1
+    if jobs == 1:
+        return None, lambda: None
+    pool = ProcessPoolExecutor(max_workers=jobs)
+    return pool, lambda: pool.shutdown(wait=False, cancel_futures=True)
+
+
+def _build_all(args: argparse.Namespace) -> int:
+    project = read_project(args.project)
+    executor, close = (_executor(args) if args.scheduler else (None, lambda: None))
+
+    def line(outcome: DesignOutcome, done: int, total: int) -> None:
+        print(outcome_line(outcome, done, total), flush=True)
+
+    try:
+        result = build_project(project, jobs=args.jobs, executor=executor, check=args.check,
+                               rebuild=args.rebuild, on_outcome=line)
+    finally:
+        close()
+    print()
+    for text in result.summary_lines():
+        print(text)
+    failed = [o for o in result.outcomes if o.status == "failed"]
+    stale = [o for o in result.outcomes if o.status == "stale"]
+    print()
+    print(f"{len(result.outcomes)} designs: "
+          + ", ".join(f"{n} {status}" for status, n in sorted(
+              Counter(o.status for o in result.outcomes).items())))
+    if result.interrupted:
+        print("fsmsynth: interrupted; finished designs are written and cached",
+              file=sys.stderr)
+        return 130
+    if not args.check and not args.quiet:
+        print()
+        print(CAUTION)
+    return 1 if failed or stale else 0
+
+
+def _sweep(args: argparse.Namespace) -> int:
+    project = read_project(args.project)
+    tables = [read_table(spec.path) for spec in project.specs]
+    lists = project.sweep
+
+    def choice(given: list[str] | None, key: str, default: str) -> list[str]:
+        return given or list(lists.get(key, (default,)))
+
+    targets: list[str | Target] = [_target_arg(t) for t in choice(args.targets, "targets",
+                                                                    "two-level")]
+    executor, close = _executor(args)
+    progress = sys.stderr.isatty() if args.progress is None else args.progress
+    try:
+        result = sweep(tables, choice(args.storages, "storages", "d"),
+                       choice(args.encodings, "encodings", "binary"), targets,
+                       executor=executor, progress=progress)
+    finally:
+        close()
+    files: dict[str | Path, bytes | str] = {}
+    if args.csv:
+        files[args.csv] = result.to_csv(times=args.times)
+    if args.json:
+        files[args.json] = result.to_json(times=args.times)
+    if files:
+        write_all_if_changed(files)
+    else:
+        print(result.to_csv(times=args.times), end="")
+    failed = [r for r in result.rows if r.error or not r.verified]
+    for row in failed:
+        print(f"{row.machine} {row.storage} {row.encoding} {row.target}: "
+              f"{row.error or 'not verified'}", file=sys.stderr)
+    if files:
+        print(f"{len(result.rows)} designs ({len(failed)} failed) -> "
+              f"{', '.join(str(f) for f in files)}")
+    if result.interrupted:
+        print(f"fsmsynth: interrupted; {len(result.rows)} finished rows kept", file=sys.stderr)
+        return 130
+    return 1 if failed else 0
 
 
 def _target_lines(design: Design) -> list[str]:
@@ -331,32 +471,20 @@ def _report(design: Design) -> dict[str, object]:
 
 def _build(args: argparse.Namespace) -> int:
     table = _read(args)
-    design = synthesize(table, _storage_arg(args.storage), _encoding_arg(args.encoding),
-                        unused=args.unused, minimize=not args.no_minimize, logic=args.logic,
-                        weights=_weights_arg(args.weights), seed=args.seed, budget=args.budget,
-                        width=args.width, clock_edge=args.clock_edge, jobs=args.jobs,
-                        time_limit=args.time_limit, force=args.force,
-                        target=_target_arg(args.target), map_for=args.map_for,
-                        outputs=args.outputs, unit_distance=args.unit_distance)
+    storage = _storage_arg(args.storage)
+    encoding = _encoding_arg(args.encoding)
+    options = BuildOptions(
+        storage=tuple(storage) if isinstance(storage, list) else storage,
+        encoding=FrozenMap(encoding) if isinstance(encoding, dict) else encoding,
+        unused=args.unused, minimize=not args.no_minimize, logic=args.logic,
+        weights=_weights_arg(args.weights), seed=args.seed, budget=args.budget,
+        width=args.width, clock_edge=args.clock_edge, jobs=args.jobs,
+        time_limit=args.time_limit, force=args.force, target=_target_arg(args.target),
+        map_for=args.map_for, outputs=args.outputs, unit_distance=args.unit_distance,
+        hdl=tuple(args.hdl), testbench=args.testbench, cocotb=args.cocotb)
+    design = synthesize_with(table, options)
     out = Path(args.out)
-    unknown = [h for h in args.hdl if h not in ("verilog", "vhdl")]
-    if unknown or not args.hdl:
-        raise OptionError(f"--hdl {','.join(args.hdl)}: give verilog, vhdl or verilog,vhdl")
-    files: dict[Path, str] = {}
-    if "verilog" in args.hdl:
-        files[out / f"{table.name}.v"] = design.verilog
-    if "vhdl" in args.hdl:
-        files[out / f"{table.name}.vhd"] = design.vhdl
-    files[out / f"{table.name}.json"] = design.json
-    if args.testbench and "verilog" in args.hdl:
-        files[out / f"{table.name}_tb.v"] = write_testbench(design.reference)
-    if args.testbench and "vhdl" in args.hdl:
-        files[out / f"{table.name}_tb.vhd"] = write_vhdl_testbench(design.reference)
-    if args.cocotb:
-        if "verilog" not in args.hdl:
-            raise OptionError("--cocotb runs the Verilog design in Icarus: keep verilog in "
-                              "--hdl")
-        files[out / f"{table.name}_cocotb.py"] = write_cocotb_bench(design.reference)
+    files = {out / name: text for name, text in design_files(design, options).items()}
     if args.check:
         stale = [str(p) for p, text in files.items()
                  if not p.is_file() or p.read_bytes() != text.encode("utf-8")]
@@ -646,7 +774,8 @@ def main(argv: Sequence[str] | None = None) -> int:
     try:
         commands = {"build": _build, "reduce": _reduce, "compare": _compare, "timing": _timing,
                     "diagram": _diagram, "kmap": _kmap,
-                    "convert": _convert, "check": _check}
+                    "convert": _convert, "check": _check, "build-all": _build_all,
+                    "sweep": _sweep}
         return commands[args.command](args)
     except FsmSynthError as exc:
         print(f"fsmsynth: error: {exc}", file=sys.stderr)
