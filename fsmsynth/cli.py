@@ -362,7 +362,13 @@ def _build_all(args: argparse.Namespace) -> int:
 
 def _sweep(args: argparse.Namespace) -> int:
     project = read_project(args.project)
-    tables = [read_table(spec.path) for spec in project.specs]
+    tables, unreadable = [], []
+    for spec in project.specs:  # a bad spec is reported and left out; the others are swept
+        try:
+            tables.append(read_table(spec.path))
+        except FsmSynthError as exc:
+            unreadable.append(str(exc))
+            print(f"fsmsynth: error: {exc}", file=sys.stderr)
     lists = project.sweep
 
     def choice(given: list[str] | None, key: str, default: str) -> list[str]:
@@ -397,7 +403,7 @@ def _sweep(args: argparse.Namespace) -> int:
     if result.interrupted:
         print(f"fsmsynth: interrupted; {len(result.rows)} finished rows kept", file=sys.stderr)
         return 130
-    return 1 if failed else 0
+    return 1 if failed or unreadable else 0
 
 
 def _target_lines(design: Design) -> list[str]:

@@ -234,6 +234,18 @@ def test_sweep_cli_writes_csv_and_json(tmp_path: Path,
     assert csv_path.read_bytes() == first
 
 
+def test_sweep_leaves_out_a_bad_spec_and_sweeps_the_others(
+        tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    path = _project(tmp_path, SIMPLE)
+    (tmp_path / "parcel_locker.toml").write_text('name = "parcel_locker"\nkind = "moore"\n')
+    out = tmp_path / "rows.csv"
+    assert main(["sweep", str(path), "--csv", str(out), "--jobs", "1", "--no-progress"]) == 1
+    err = capsys.readouterr().err
+    assert f"fsmsynth: error: {tmp_path / 'parcel_locker.toml'}" in err
+    machines = [line.split(",")[0] for line in out.read_text().splitlines()[1:]]
+    assert machines == ["greenhouse_vent", "rail_crossing"]
+
+
 def test_ctrl_c_stops_a_sweep_and_keeps_the_finished_rows(tmp_path: Path) -> None:
     out = tmp_path / "rows.csv"
     command = [sys.executable, "-m", "fsmsynth.cli", "sweep", str(PLANT), "--storages",
