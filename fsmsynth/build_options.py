@@ -83,5 +83,7 @@ class Project:
     out: Path
     specs: tuple[ProjectSpec, ...]
     sweep: FrozenMap[str, tuple[str, ...]] = field(default_factory=lambda: FrozenMap({}))
+
+
 DEFAULT_OPTIONS = BuildOptions()
 """Every option at its default."""

@@ -344,8 +344,6 @@ def _build_all(args: argparse.Namespace) -> int:
     print()
     for text in result.summary_lines():
         print(text)
-    failed = [o for o in result.outcomes if o.status == "failed"]
-    stale = [o for o in result.outcomes if o.status == "stale"]
     print()
     print(f"{len(result.outcomes)} designs: "
           + ", ".join(f"{n} {status}" for status, n in sorted(
@@ -357,7 +355,7 @@ def _build_all(args: argparse.Namespace) -> int:
     if not args.check and not args.quiet:
         print()
         print(CAUTION)
-    return 1 if failed or stale else 0
+    return 0 if result.ok else 1
 
 
 def _sweep(args: argparse.Namespace) -> int:

@@ -4,14 +4,13 @@ the optional extra fsmsynth[sim], and iverilog); elsewhere it skips when either 
 
 from __future__ import annotations
 
-import os
 import subprocess
 import sys
 from dataclasses import replace
 from pathlib import Path
 
 import pytest
-from test_verilog_tools import need
+from test_verilog_tools import need, need_module
 
 from fsmsynth import synthesize
 from fsmsynth.cli import main
@@ -22,12 +21,7 @@ EXAMPLES = Path(__file__).resolve().parent.parent / "examples"
 
 
 def need_cocotb() -> None:
-    try:
-        import cocotb  # noqa: F401
-    except ImportError:
-        if os.environ.get("CI"):
-            pytest.fail("cocotb is not installed, and CI must run this test")
-        pytest.skip("cocotb is not installed (pip install fsmsynth[sim])")
+    need_module("cocotb", "sim", "cocotb")
     need("iverilog")
 
 

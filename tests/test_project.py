@@ -3,7 +3,6 @@ pools, and on a real local Dask cluster."""
 
 from __future__ import annotations
 
-import os
 import shutil
 import signal
 import subprocess
@@ -13,6 +12,7 @@ from concurrent.futures import ProcessPoolExecutor, ThreadPoolExecutor
 from pathlib import Path
 
 import pytest
+from test_verilog_tools import need_module
 
 from fsmsynth.cli import main
 from fsmsynth.errors import SpecFileError
@@ -265,26 +265,16 @@ def test_ctrl_c_stops_a_sweep_and_keeps_the_finished_rows(tmp_path: Path) -> Non
     assert 1 < len(rows) < 1 + 7 * 4 * 4 * 4
 
 
-def _distributed_or_skip() -> object:
-    try:
-        import distributed
-    except ImportError:
-        if os.environ.get("CI"):
-            pytest.fail("dask distributed is not installed, and CI must run this test")
-        pytest.skip("dask distributed is not installed (pip install fsmsynth[cluster])")
-    return distributed
-
-
 def test_sweep_and_build_all_on_a_local_dask_cluster_match_local_runs(
         tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
-    distributed = _distributed_or_skip()
+    distributed = need_module("distributed", "cluster", "dask distributed")
     tables = _tables()
     here = sweep(tables, ["d", "jk", "t"], ["binary", "one-hot"])
     assert len(here) >= 20
-    cluster = distributed.LocalCluster(  # type: ignore[attr-defined]
+    cluster = distributed.LocalCluster(
         n_workers=2, threads_per_worker=1, processes=True, dashboard_address=None)
     try:
-        with distributed.Client(cluster) as client:  # type: ignore[attr-defined]
+        with distributed.Client(cluster) as client:
             remote = sweep(tables, ["d", "jk", "t"], ["binary", "one-hot"],
                            executor=client.get_executor())
         assert remote.to_csv() == here.to_csv()

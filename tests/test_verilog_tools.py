@@ -5,10 +5,12 @@ These run in CI (.ci/run installs both); elsewhere they skip when a tool is miss
 
 from __future__ import annotations
 
+import importlib
 import os
 import shutil
 import subprocess
 from pathlib import Path
+from typing import Any
 
 import pytest
 
@@ -27,6 +29,17 @@ def need(tool: str) -> str:
             pytest.fail(f"{tool} is not installed, and CI must run this test")
         pytest.skip(f"{tool} is not installed")
     return path
+
+
+def need_module(name: str, extra: str, what: str) -> Any:
+    """The Python module ``name``: a skip without it, a failure in CI, which must run the
+    test (``extra`` is the fsmsynth extra that installs it)."""
+    try:
+        return importlib.import_module(name)
+    except ImportError:
+        if IN_CI:
+            pytest.fail(f"{what} is not installed, and CI must run this test")
+        pytest.skip(f"{what} is not installed (pip install fsmsynth[{extra}])")
 
 
 def machines() -> list[StateTable]:

@@ -114,22 +114,21 @@ def read_project(path: str | Path) -> Project:
                        f"{', '.join(labels)})", section, None)
         if not isinstance(options, dict):
             raise fail(f"[{section}] must be a table of options", section, None)
-    specs = []
-    for label, f in labels.items():
-        merged = {**defaults, **per_spec.get(label, {})}
-        specs.append(_spec(f, merged, defaults, per_spec.get(label, {}), base, fail, label))
+    specs = [_spec(f, defaults, per_spec.get(label, {}), base, fail, label)
+             for label, f in labels.items()]
     return Project(path=p, out=(base / out), specs=tuple(specs),
                    sweep=_sweep(data.get("sweep", {}), fail))
 
 
-def _spec(f: Path, merged: Mapping[str, Any], defaults: Mapping[str, Any],
-          own: Mapping[str, Any], base: Path, fail: Any, label: str) -> ProjectSpec:
+def _spec(f: Path, defaults: Mapping[str, Any], own: Mapping[str, Any], base: Path,
+          fail: Any, label: str) -> ProjectSpec:
+    """The spec ``f`` with the ``defaults`` and its ``own`` options (which win)."""
     def where(key: str) -> str:
         return f"spec.{label}" if key in own else "defaults"
 
     values: dict[str, Any] = {}
     depends: list[Path] = []
-    for key, raw in merged.items():
+    for key, raw in {**defaults, **own}.items():
         if key not in _KINDS:
             raise fail(f"unknown option {key!r}: use {', '.join(_KINDS)}", where(key), key)
         kinds = _KINDS[key]
