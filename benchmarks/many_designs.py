@@ -26,10 +26,10 @@ sys.path.insert(0, str(Path(__file__).resolve().parent))
 
 from controllers import controller
 
+from fsmsynth.flows.project import build_project
+from fsmsynth.flows.project_file import read_project
+from fsmsynth.flows.sweep import sweep
 from fsmsynth.formats import read_table
-from fsmsynth.formats.project_toml import read_project
-from fsmsynth.project import build_project
-from fsmsynth.sweep import sweep
 from fsmsynth.writers.spec_toml import write_spec
 
 COUNT = 50
@@ -91,7 +91,7 @@ def main() -> None:
             return
         with LocalCluster(n_workers=2, threads_per_worker=1, processes=True,
                           dashboard_address=None) as cluster, Client(cluster) as client:
-            client.run(lambda: __import__("fsmsynth.sweep"))  # warm the workers' imports
+            client.run(lambda: __import__("fsmsynth.flows.sweep"))  # warm the workers' imports
             started = time.perf_counter()
             remote = sweep(tables, ["d", "jk"], ["binary", "one-hot"],
                            executor=client.get_executor())

@@ -20,7 +20,7 @@ from pathlib import Path
 sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
 
 from fsmsynth import StateTable
-from fsmsynth.reduce import minimize_states
+from fsmsynth.stages.reduce import minimize_states
 
 WORDS = ["00", "01", "10", "11"]
 

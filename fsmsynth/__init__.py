@@ -1,11 +1,6 @@
 """fsmsynth: from a state table to verified next-state and output logic and a gate netlist."""
 
-from fsmsynth.compare import Comparison, ComparisonRow, compare
-from fsmsynth.convert import StorageConversion, convert_storage
-from fsmsynth.cost import Cost, CostWeights
-from fsmsynth.encode import Encoding, encode
-from fsmsynth.equations import Equation
-from fsmsynth.errors import (
+from fsmsynth.base.errors import (
     EncodingError,
     FsmSynthError,
     InvariantError,
@@ -15,20 +10,28 @@ from fsmsynth.errors import (
     TableError,
     VerificationError,
 )
-from fsmsynth.invariants import (
+from fsmsynth.checks.invariants import (
     InvariantCheck,
     InvariantViolation,
     check_invariants,
     constrain_outputs,
 )
+from fsmsynth.checks.proof import Counterexample, Verification
+from fsmsynth.checks.simulate import simulate
+from fsmsynth.checks.timing import Delays, GateDelay, TimingReport, timing
+from fsmsynth.checks.verify import verify
+from fsmsynth.flows.compare import Comparison, ComparisonRow, compare
+from fsmsynth.flows.convert import StorageConversion, convert_storage
+from fsmsynth.flows.pipeline import Design, synthesize
+from fsmsynth.logic.cost import Cost, CostWeights
 from fsmsynth.logic.sop import SopCover, minimize_sop
-from fsmsynth.netlist import FlipFlop, Gate, Netlist
-from fsmsynth.pipeline import Design, synthesize
-from fsmsynth.reduce import StateMinimization, minimize_states
-from fsmsynth.storage import STORAGES, Storage
-from fsmsynth.table import StateTable
-from fsmsynth.timing import Delays, GateDelay, TimingReport, timing
-from fsmsynth.verify import Counterexample, Verification, simulate, verify
+from fsmsynth.model.storage import STORAGES, Storage
+from fsmsynth.model.table import StateTable
+from fsmsynth.stages.encode import Encoding, encode
+from fsmsynth.stages.equations import Equation
+from fsmsynth.stages.netlist import FlipFlop, Gate, Netlist
+from fsmsynth.stages.reduce import minimize_states
+from fsmsynth.stages.reduce.tabulation import StateMinimization
 from fsmsynth.version import __version__
 
 __all__ = [

@@ -8,7 +8,7 @@ from __future__ import annotations
 
 from hypothesis import strategies as st
 
-from fsmsynth.table import StateTable
+from fsmsynth.model.table import StateTable
 
 
 @st.composite

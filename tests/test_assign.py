@@ -13,16 +13,15 @@ from reference import step
 from strategies import state_tables
 
 from fsmsynth import StateTable, synthesize
-from fsmsynth.assign import (
+from fsmsynth.base.errors import OptionError
+from fsmsynth.cli import main
+from fsmsynth.formats import read_table
+from fsmsynth.stages.assign.adjacency import (
     adjacency_codes,
     adjacency_embeddings,
     adjacency_weights,
-    count_assignments,
-    exhaustive_assignments,
 )
-from fsmsynth.cli import main
-from fsmsynth.errors import OptionError
-from fsmsynth.formats import read_table
+from fsmsynth.stages.assign.exhaustive import count_assignments, exhaustive_assignments
 
 EXAMPLES = Path(__file__).resolve().parent.parent / "examples"
 METHODS = ["binary", "gray", "one-hot", "adjacency", "anneal"]
@@ -115,7 +114,7 @@ def test_local_weights_link_the_pairs_the_per_class_count_links(table: StateTabl
     # The two ways of counting rules (1) and (3) must agree on which pairs of states share a
     # next state or a fully specified output word on some input point (rules from the module
     # docstring; the per-class count is the original method, the local one is its scaled form).
-    import fsmsynth.assign as assign
+    import fsmsynth.stages.assign as assign
     by_class = adjacency_weights(table)
     saved = assign.WEIGHTS_BY_CLASS_UP_TO
     assign.WEIGHTS_BY_CLASS_UP_TO = 0
@@ -180,7 +179,8 @@ def test_build_reports_the_search(tmp_path: Path, capsys: pytest.CaptureFixture[
 
 
 def test_ctrl_c_returns_the_best_found_so_far(capsys: pytest.CaptureFixture[str]) -> None:
-    from fsmsynth.assign import anneal_search, exhaustive_search
+    from fsmsynth.stages.assign.anneal import anneal_search
+    from fsmsynth.stages.assign.exhaustive import exhaustive_search
 
     table = read_table(EXAMPLES / "parcel_locker.toml")
     calls = []
@@ -227,7 +227,7 @@ def _ring(n: int, inputs: int = 1) -> StateTable:
 
 
 def test_exhaustive_refuses_a_search_it_cannot_finish() -> None:
-    from fsmsynth.assign import count_candidates
+    from fsmsynth.stages.assign.exhaustive import count_candidates
 
     table = _ring(10, inputs=5)
     # 16!/6! ordered assignments of 10 states to 4-bit codes, up to the 4! bit permutations,

@@ -13,11 +13,11 @@ from strategies import state_tables
 
 from fsmsynth import STORAGES, SpecFileError, StateTable, synthesize
 from fsmsynth.cli import main
-from fsmsynth.compare import compare
-from fsmsynth.convert import convert_storage
-from fsmsynth.cost import CostWeights
+from fsmsynth.flows.compare import compare
+from fsmsynth.flows.convert import convert_storage
 from fsmsynth.formats import read_table
 from fsmsynth.formats.weights_toml import read_weights
+from fsmsynth.logic.cost import CostWeights
 
 EXAMPLES = Path(__file__).resolve().parent.parent / "examples"
 

@@ -16,7 +16,7 @@ import pytest
 
 from fsmsynth import CostWeights, OptionError, StateTable, TableError, minimize_sop, synthesize
 from fsmsynth.cli import main
-from fsmsynth.reduce import minimize_states
+from fsmsynth.stages.reduce import minimize_states
 
 EXAMPLES = Path(__file__).resolve().parent.parent / "examples"
 LOCKER = str(EXAMPLES / "parcel_locker.toml")
@@ -266,7 +266,7 @@ def test_a_signal_mid_build_leaves_no_partial_output(signum: int, tmp_path: Path
 def test_ctrl_c_outside_a_search_is_one_line(tmp_path: Path) -> None:
     env = {**os.environ, "PYTHONUNBUFFERED": "1"}
     code = ("import os, signal, threading, time\n"
-            "import fsmsynth.pipeline as p\n"
+            "import fsmsynth.flows.pipeline as p\n"
             "from fsmsynth.cli import run\n"
             "def slow(*a, **k):\n    time.sleep(30)\n"
             "p.minimize_states = slow\n"

@@ -17,8 +17,8 @@ from hypothesis import strategies as st
 from strategies import state_tables
 
 from fsmsynth import StateTable, synthesize
+from fsmsynth.checks.hazards import hazard_free, static_hazards
 from fsmsynth.cli import main
-from fsmsynth.hazards import hazard_free, static_hazards
 from fsmsynth.logic import bdd
 from fsmsynth.logic.cube import Cube
 

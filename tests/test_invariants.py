@@ -29,8 +29,8 @@ from fsmsynth import (
     simulate,
     synthesize,
 )
+from fsmsynth.base.errors import SpecFileError
 from fsmsynth.cli import main
-from fsmsynth.errors import SpecFileError
 from fsmsynth.formats import parse_spec
 
 # --- random invariants, as text and as a Python function ---------------------------------

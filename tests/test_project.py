@@ -14,12 +14,12 @@ from pathlib import Path
 import pytest
 from test_verilog_tools import need_module
 
+from fsmsynth.base.errors import SpecFileError
 from fsmsynth.cli import main
-from fsmsynth.errors import SpecFileError
+from fsmsynth.flows.project import CACHE_NAME, build_project
+from fsmsynth.flows.project_file import read_project
+from fsmsynth.flows.sweep import COLUMNS, sweep
 from fsmsynth.formats import read_table
-from fsmsynth.formats.project_toml import read_project
-from fsmsynth.project import CACHE_NAME, build_project
-from fsmsynth.sweep import COLUMNS, sweep
 
 ROOT = Path(__file__).resolve().parent.parent
 EXAMPLES = ROOT / "examples"
@@ -83,12 +83,12 @@ def test_build_all_builds_each_spec_like_build_and_rebuilds_only_what_changed(
 
 def test_a_new_fsmsynth_version_rebuilds_everything(tmp_path: Path,
                                                     monkeypatch: pytest.MonkeyPatch) -> None:
-    import fsmsynth.project
+    import fsmsynth.flows.project
 
     project = read_project(_project(tmp_path, SIMPLE))
     assert {o.status for o in build_project(project, jobs=1).outcomes} == {"rebuilt"}
     assert {o.status for o in build_project(project, jobs=1).outcomes} == {"up to date"}
-    monkeypatch.setattr(fsmsynth.project, "__version__", "99.0")
+    monkeypatch.setattr(fsmsynth.flows.project, "__version__", "99.0")
     assert {o.status for o in build_project(project, jobs=1).outcomes} == {"rebuilt"}
 
 

@@ -12,10 +12,10 @@ from hypothesis import strategies as st
 from reference import brute_force_minimum_states, pair_compatible, realizes, words
 from strategies import state_tables
 
-import fsmsynth.reduce as reduce_module
+import fsmsynth.stages.reduce as reduce_module
 from fsmsynth import StateTable
-from fsmsynth.check import reachable_states
-from fsmsynth.reduce import minimize_states
+from fsmsynth.checks.table_check import reachable_states
+from fsmsynth.stages.reduce import minimize_states
 
 
 def mealy(rows: list[tuple[str, tuple[str, str], tuple[str, str]]], reset: str) -> StateTable:

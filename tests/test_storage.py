@@ -6,8 +6,8 @@ import itertools
 
 import pytest
 
-from fsmsynth.errors import OptionError
-from fsmsynth.storage import STORAGES, storage_named
+from fsmsynth.base.errors import OptionError
+from fsmsynth.model.storage import STORAGES, storage_named
 
 # Characteristic tables: Mano, M. M. and Ciletti, M. D., Digital Design, 5th ed., Pearson,
 # 2013, section 5.4, Table 5.1 (JK, D and T); SR: Roth, C. H. and Kinney, L. L.,

@@ -7,7 +7,7 @@ import re
 import pytest
 
 from fsmsynth import StateTable, TableError
-from fsmsynth.check import check_table
+from fsmsynth.checks.table_check import check_table
 
 
 def make(**overrides: object) -> StateTable:

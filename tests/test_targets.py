@@ -20,18 +20,18 @@ from strategies import state_tables
 from test_verilog_tools import need
 
 from fsmsynth import StateTable, synthesize, verify
+from fsmsynth.base.errors import OptionError, SpecFileError
+from fsmsynth.checks.simulate import evaluate
 from fsmsynth.cli import main
-from fsmsynth.cost import normal_terms
-from fsmsynth.errors import OptionError, SpecFileError
 from fsmsynth.formats.cells_toml import parse_cells
+from fsmsynth.logic.cost import normal_terms
 from fsmsynth.logic.cube import Cube
 from fsmsynth.map.cells import cover
 from fsmsynth.map.factor import factor
 from fsmsynth.map.luts import map_luts
 from fsmsynth.map.subject import SubjectGraph, subject_graph
-from fsmsynth.netlist import Gate, Netlist
-from fsmsynth.targets import target_named
-from fsmsynth.verify import evaluate
+from fsmsynth.map.targets import target_named
+from fsmsynth.stages.netlist import Gate, Netlist
 from fsmsynth.writers.testbench import write_testbench
 
 EXAMPLES = Path(__file__).resolve().parent.parent / "examples"

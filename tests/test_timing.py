@@ -8,11 +8,11 @@ from pathlib import Path
 import pytest
 
 from fsmsynth import synthesize
+from fsmsynth.checks.timing import Delays, GateDelay, timing
 from fsmsynth.cli import main
 from fsmsynth.formats import read_table
-from fsmsynth.netlist import FlipFlop, Gate, Netlist
-from fsmsynth.storage import STORAGES
-from fsmsynth.timing import Delays, GateDelay, timing
+from fsmsynth.model.storage import STORAGES
+from fsmsynth.stages.netlist import FlipFlop, Gate, Netlist
 
 EXAMPLES = Path(__file__).resolve().parent.parent / "examples"
 
@@ -109,7 +109,7 @@ def test_falling_edge_reaches_the_verilog_and_json() -> None:
 def test_impossible_delays_are_rejected(changes: dict[str, float], message: str) -> None:
     import dataclasses
 
-    from fsmsynth.errors import OptionError
+    from fsmsynth.base.errors import OptionError
 
     with pytest.raises(OptionError) as info:
         dataclasses.replace(Delays(), **changes)

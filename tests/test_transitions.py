@@ -15,8 +15,8 @@ from hypothesis import given, settings
 from hypothesis import strategies as st
 
 from fsmsynth import STORAGES, StateTable, synthesize
-from fsmsynth.errors import TableError
-from fsmsynth.guards import compile_guard
+from fsmsynth.base.errors import TableError
+from fsmsynth.language.guards import compile_guard
 from fsmsynth.logic import bdd
 
 # A guard as a tree over ports of given widths: ("in", p) a 1-bit port | ("bit", p, i) bit i
@@ -350,7 +350,7 @@ def test_the_bundled_guarded_example_builds_and_verifies() -> None:
 
 
 def test_check_lists_what_no_guard_covers_as_guards() -> None:
-    from fsmsynth.check import check_table
+    from fsmsynth.checks.table_check import check_table
     table = StateTable.from_transitions(
         name="m", reset="a", inputs={"start": 1, "mode": 2}, outputs=[],
         transitions=[("a", "start & mode != 3", "a", {}), ("a", "~start & mode[1]", "a", {})])

@@ -13,8 +13,8 @@ from reference import brute_force_equivalent
 from test_verilog_tools import need
 
 from fsmsynth import FlipFlop, Gate, Netlist, StateTable, simulate, synthesize, verify
-from fsmsynth.errors import NetlistError
-from fsmsynth.storage import STORAGES
+from fsmsynth.base.errors import NetlistError
+from fsmsynth.model.storage import STORAGES
 from fsmsynth.writers.verilog import write_verilog
 
 

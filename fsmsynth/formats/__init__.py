@@ -1,14 +1,14 @@
-"""Readers: spec files to :class:`~fsmsynth.table.StateTable`.  They never write files."""
+"""Readers: spec files to :class:`~fsmsynth.model.table.StateTable`.  They never write files."""
 
 from __future__ import annotations
 
 from collections.abc import Mapping
 from pathlib import Path
 
-from fsmsynth.errors import OptionError
+from fsmsynth.base.errors import OptionError
 from fsmsynth.formats.csv_table import parse_csv, read_csv
 from fsmsynth.formats.spec_toml import parse_spec, read_spec
-from fsmsynth.table import StateTable
+from fsmsynth.model.table import StateTable
 
 __all__ = ["parse_csv", "parse_spec", "read_csv", "read_spec", "read_table"]
 

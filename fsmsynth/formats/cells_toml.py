@@ -26,18 +26,18 @@ import tomllib
 from pathlib import Path
 from typing import Any
 
-from fsmsynth.errors import OptionError, SpecFileError
+from fsmsynth.base.errors import OptionError, SpecFileError
+from fsmsynth.base.frozen import FrozenMap
 from fsmsynth.formats.text_files import read_text
-from fsmsynth.frozen import FrozenMap
-from fsmsynth.storage import STORAGES
-from fsmsynth.targets import Cell, Target, make_cell
+from fsmsynth.map.targets import Cell, Target, make_cell
+from fsmsynth.model.storage import STORAGES
 
 KEYS = ("name", "flip_flops", "cell", "lut_size")
 CELL_KEYS = ("name", "pins", "function", "area", "delay")
 
 
 def read_cells(path: str | Path) -> Target:
-    """A :class:`~fsmsynth.targets.Target` from a cell library file."""
+    """A :class:`~fsmsynth.map.targets.Target` from a cell library file."""
     return parse_cells(read_text(path), str(path))
 
 

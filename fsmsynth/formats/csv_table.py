@@ -22,10 +22,10 @@ import re
 from collections.abc import Mapping
 from pathlib import Path
 
-from fsmsynth.errors import SpecFileError, TableError
+from fsmsynth.base.errors import SpecFileError, TableError
+from fsmsynth.base.names import bit_name
 from fsmsynth.formats.text_files import read_text
-from fsmsynth.names import bit_name
-from fsmsynth.table import StateTable
+from fsmsynth.model.table import StateTable
 
 SETTINGS = ("name", "reset", "kind")
 _OLD_DIRECTIVE = re.compile(r"#\s*(name|reset|kind)\s*:")

@@ -20,10 +20,10 @@ from __future__ import annotations
 from dataclasses import fields, replace
 from pathlib import Path
 
-from fsmsynth.errors import OptionError, SpecFileError
+from fsmsynth.base.errors import OptionError, SpecFileError
+from fsmsynth.base.frozen import FrozenMap
+from fsmsynth.checks.timing import Delays, GateDelay
 from fsmsynth.formats.text_files import non_negative, read_toml_table
-from fsmsynth.frozen import FrozenMap
-from fsmsynth.timing import Delays, GateDelay
 
 
 def read_delays(path: str | Path) -> Delays:

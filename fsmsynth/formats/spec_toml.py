@@ -11,9 +11,9 @@ import tomllib
 from pathlib import Path
 from typing import Any
 
-from fsmsynth.errors import SpecFileError, TableError
+from fsmsynth.base.errors import SpecFileError, TableError
 from fsmsynth.formats.text_files import read_text
-from fsmsynth.table import StateTable
+from fsmsynth.model.table import StateTable
 
 KEYS = ("name", "kind", "inputs", "outputs", "reset", "states", "rows", "state_outputs",
         "transition", "default_outputs", "otherwise", "invariants")

@@ -7,7 +7,7 @@ import tomllib
 from pathlib import Path
 from typing import Any
 
-from fsmsynth.errors import SpecFileError
+from fsmsynth.base.errors import SpecFileError
 
 
 def read_text(path: str | Path) -> str:

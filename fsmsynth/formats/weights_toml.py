@@ -16,11 +16,11 @@ from __future__ import annotations
 
 from pathlib import Path
 
-from fsmsynth.cost import GATE_KINDS, CostWeights
-from fsmsynth.errors import SpecFileError
+from fsmsynth.base.errors import SpecFileError
+from fsmsynth.base.frozen import FrozenMap
 from fsmsynth.formats.text_files import non_negative, read_toml_table
-from fsmsynth.frozen import FrozenMap
-from fsmsynth.storage import STORAGES
+from fsmsynth.logic.cost import GATE_KINDS, CostWeights
+from fsmsynth.model.storage import STORAGES
 
 
 def read_weights(path: str | Path) -> CostWeights:

@@ -12,8 +12,8 @@ from __future__ import annotations
 from collections.abc import Sequence
 from dataclasses import dataclass
 
-from fsmsynth.cost import DEFAULT_WEIGHTS, CostWeights, normal_terms
-from fsmsynth.errors import OptionError
+from fsmsynth.base.errors import OptionError
+from fsmsynth.logic.cost import DEFAULT_WEIGHTS, CostWeights, normal_terms
 from fsmsynth.logic.cube import Cube
 from fsmsynth.logic.espresso import espresso_cover
 from fsmsynth.logic.exact import exact_cover, points_of
@@ -28,7 +28,7 @@ EXACT_MAX_VARIABLES = 16
 
 @dataclass(frozen=True, slots=True)
 class Cover:
-    """A sum of products for every function of a :class:`~fsmsynth.excite.LogicFunctions`.
+    """A sum of products for every function of a :class:`~fsmsynth.stages.excite.LogicFunctions`.
 
     Attributes
     ----------
@@ -63,8 +63,9 @@ def _logic_weight(terms: Sequence[Sequence[Cube]], weights: CostWeights) -> tupl
         float, int, int]:
     """Gate cost, then (to break ties toward plain equations) literals and terms per function.
 
-    The same count as :func:`fsmsynth.cost.logic_shape` and :func:`fsmsynth.cost.weigh`, in
-    one pass: this runs in the inner loop of the cover choice and of the encoding searches.
+    The same count as :func:`fsmsynth.logic.cost.logic_shape` and
+    :func:`fsmsynth.logic.cost.weigh`, in one pass: this runs in the inner loop of the cover
+    choice and of the encoding searches.
     """
     # Terms are keyed by their (care, value) ints: hashing those is much cheaper than
     # hashing Cube records, and this runs thousands of times per search.

@@ -12,7 +12,7 @@ from dataclasses import dataclass
 
 import sympy
 
-from fsmsynth.errors import OptionError
+from fsmsynth.base.errors import OptionError
 from fsmsynth.logic.cover import EXACT_MAX_VARIABLES
 from fsmsynth.logic.cube import Cube
 from fsmsynth.logic.engine_lock import exclusive

@@ -25,7 +25,7 @@ from dataclasses import dataclass
 
 from fsmsynth.map.expr import Expr
 from fsmsynth.map.subject import SubjectGraph
-from fsmsynth.targets import Cell
+from fsmsynth.map.targets import Cell
 
 GOALS = ("area", "delay")
 

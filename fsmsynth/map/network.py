@@ -21,7 +21,7 @@ from __future__ import annotations
 from collections.abc import Sequence
 from dataclasses import dataclass
 
-from fsmsynth.cost import normal_terms
+from fsmsynth.logic.cost import normal_terms
 from fsmsynth.logic.cube import Cube
 from fsmsynth.map.factor import divide
 

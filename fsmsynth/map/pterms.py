@@ -16,11 +16,11 @@ from __future__ import annotations
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass
 
+from fsmsynth.base.names import RESERVED_PREFIX
 from fsmsynth.logic.cover import Cover
 from fsmsynth.logic.cube import Cube
-from fsmsynth.names import RESERVED_PREFIX
-from fsmsynth.netlist import Gate, state_net
-from fsmsynth.storage import Storage
+from fsmsynth.model.storage import Storage
+from fsmsynth.stages.netlist import Gate, state_net
 
 
 @dataclass(frozen=True, slots=True)

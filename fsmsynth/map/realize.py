@@ -14,7 +14,8 @@ from __future__ import annotations
 from collections.abc import Iterable, Mapping, Sequence
 from dataclasses import dataclass
 
-from fsmsynth.frozen import FrozenMap
+from fsmsynth.base.frozen import FrozenMap
+from fsmsynth.base.names import RESERVED_PREFIX
 from fsmsynth.logic.cover import Cover
 from fsmsynth.logic.cube import Cube
 from fsmsynth.logic.sop import minimum_terms
@@ -25,10 +26,9 @@ from fsmsynth.map.luts import map_luts
 from fsmsynth.map.network import Network, plain_network, restructured
 from fsmsynth.map.pterms import ArrayFit, fit_array
 from fsmsynth.map.subject import SubjectGraph
-from fsmsynth.names import RESERVED_PREFIX
-from fsmsynth.netlist import FlipFlop, Gate, Netlist, state_net
-from fsmsynth.storage import STORAGES, Storage
-from fsmsynth.targets import Target
+from fsmsynth.map.targets import Target
+from fsmsynth.model.storage import STORAGES, Storage
+from fsmsynth.stages.netlist import FlipFlop, Gate, Netlist, state_net
 
 D = STORAGES["d"]
 

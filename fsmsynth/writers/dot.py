@@ -11,8 +11,8 @@ import shutil
 import subprocess
 from pathlib import Path
 
-from fsmsynth.netlist import Netlist
-from fsmsynth.table import StateTable
+from fsmsynth.model.table import StateTable
+from fsmsynth.stages.netlist import Netlist
 
 
 def _q(text: str) -> str:

@@ -21,8 +21,8 @@ from __future__ import annotations
 import json
 from collections.abc import Mapping
 
-from fsmsynth.names import port_bits, ports_of
-from fsmsynth.netlist import Gate, Netlist
+from fsmsynth.base.names import port_bits, ports_of
+from fsmsynth.stages.netlist import Gate, Netlist
 
 SCHEMA = "fsmsynth-netlist"
 VERSION = 1

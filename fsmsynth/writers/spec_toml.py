@@ -5,12 +5,12 @@ from __future__ import annotations
 import json
 from typing import Any
 
-from fsmsynth.guards import guard_text
+from fsmsynth.base.names import ports_of
+from fsmsynth.language.guards import guard_text
 from fsmsynth.logic import bdd
 from fsmsynth.logic.cube import Cube
 from fsmsynth.logic.espresso import espresso_cover
-from fsmsynth.names import ports_of
-from fsmsynth.table import StateTable
+from fsmsynth.model.table import StateTable
 
 
 def _quote(text: str) -> str:

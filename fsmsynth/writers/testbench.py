@@ -14,8 +14,8 @@ from collections import deque
 from collections.abc import Callable
 from dataclasses import dataclass
 
-from fsmsynth.names import ports_of
-from fsmsynth.table import StateTable
+from fsmsynth.base.names import ports_of
+from fsmsynth.model.table import StateTable
 
 
 def _fills(cube: str) -> list[str]:

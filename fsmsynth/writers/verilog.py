@@ -10,9 +10,9 @@ pragma with a comment saying why.
 
 from __future__ import annotations
 
-from fsmsynth.names import RESERVED_PREFIX, ports_of, split_bit
-from fsmsynth.netlist import FlipFlop, Gate, Netlist
-from fsmsynth.storage import Storage
+from fsmsynth.base.names import RESERVED_PREFIX, ports_of, split_bit
+from fsmsynth.model.storage import Storage
+from fsmsynth.stages.netlist import FlipFlop, Gate, Netlist
 from fsmsynth.version import __version__
 
 _PRIMITIVES = {"not", "buf", "and", "or", "nand", "nor", "xor", "xnor"}

@@ -14,12 +14,12 @@ from __future__ import annotations
 
 from collections.abc import Sequence
 
-from fsmsynth.errors import TableError
+from fsmsynth.base.errors import TableError
+from fsmsynth.base.names import ports_of, split_bit
 from fsmsynth.map.realize import characteristic_sop
-from fsmsynth.names import ports_of, split_bit
-from fsmsynth.netlist import Gate, Netlist
-from fsmsynth.storage import Storage
-from fsmsynth.table import StateTable
+from fsmsynth.model.storage import Storage
+from fsmsynth.model.table import StateTable
+from fsmsynth.stages.netlist import Gate, Netlist
 from fsmsynth.version import __version__
 from fsmsynth.writers.testbench import BenchSyntax, bench_body
 
@@ -51,7 +51,7 @@ def vhdl_problem(name: str) -> str | None:
 
 
 def check_vhdl_names(name: str, inputs: Sequence[str], outputs: Sequence[str]) -> None:
-    """Raise :class:`~fsmsynth.errors.TableError` naming the first name VHDL cannot take
+    """Raise :class:`~fsmsynth.base.errors.TableError` naming the first name VHDL cannot take
     (ports by their base name; ``Start`` and ``start`` are one name in VHDL)."""
     seen: dict[str, str] = {"clk": "clk", "rst": "rst"}
     for role, names in (("machine", [name]), ("input", [p for p, _w in ports_of(inputs)]),

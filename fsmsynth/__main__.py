@@ -1,0 +1,5 @@
+"""``python -m fsmsynth``: the ``fsmsynth`` command."""
+
+from fsmsynth.cli import run
+
+run()

@@ -1,0 +1,99 @@
+"""What a valid table leaves open: unreachable states and unspecified input combinations.
+
+These are reported, not rejected: a don't care is often intended, and an unreachable state
+may be a placeholder.  Designers of machinery should still read the report (see README,
+"Cautions").
+"""
+
+from __future__ import annotations
+
+from collections import deque
+from dataclasses import dataclass
+
+from fsmsynth.language.guards import guard_text
+from fsmsynth.logic.cube import Cube, sharp
+from fsmsynth.logic.engine_lock import exclusive
+from fsmsynth.model.table import StateTable
+
+
+@dataclass(frozen=True, slots=True)
+class TableReport:
+    """Findings about a table.
+
+    Attributes
+    ----------
+    reachable:
+        States reachable from reset, in declaration order.
+    unreachable:
+        States no sequence of specified transitions reaches from reset.
+    unspecified:
+        ``(state, cubes)`` for each state with input combinations that no row lists, as
+        disjoint input cubes.
+    inputs:
+        The table's input names, so that :meth:`lines` can write those cubes as guards.
+    dont_care_next:
+        ``(state, input cube)`` of rows whose next state is a don't care.
+    """
+
+    reachable: tuple[str, ...]
+    unreachable: tuple[str, ...]
+    unspecified: tuple[tuple[str, tuple[str, ...]], ...]
+    dont_care_next: tuple[tuple[str, str], ...]
+    inputs: tuple[str, ...] = ()
+
+    @property
+    def completely_specified(self) -> bool:
+        """Whether every state has a next state for every input combination."""
+        return not self.unspecified and not self.dont_care_next
+
+    def lines(self) -> list[str]:
+        """The findings as sentences."""
+        out = []
+        if self.unreachable:
+            out.append(f"unreachable from reset: {', '.join(self.unreachable)}")
+        for state, cubes in self.unspecified:
+            guards = " | ".join(
+                f"({g})" if "&" in g and len(cubes) > 1 else g
+                for g in (guard_text(Cube.from_string(c), self.inputs) for c in cubes))
+            out.append(f"state {state!r}: nothing covers {guards} "
+                       "(next state and outputs are don't cares there)")
+        for state, cube in self.dont_care_next:
+            out.append(f"state {state!r}: next state is a don't care for inputs {cube!r}")
+        return out
+
+
+def reachable_states(table: StateTable) -> tuple[str, ...]:
+    """States reachable from reset through specified transitions, in declaration order."""
+    seen = {table.reset}
+    queue = deque([table.reset])
+    while queue:
+        state = queue.popleft()
+        for _s, _c, nxt, _o in table.rows_of(state):
+            if nxt is not None and nxt not in seen:
+                seen.add(nxt)
+                queue.append(nxt)
+    return tuple(s for s in table.states if s in seen)
+
+
+@exclusive
+def check_table(table: StateTable) -> TableReport:
+    """Report what ``table`` leaves unspecified.  Cost: O(rows^2 x inputs) in the worst case."""
+    reachable = reachable_states(table)
+    reached = set(reachable)
+    n = len(table.inputs)
+    unspecified = []
+    for state in table.states:
+        left = [Cube.universe()]
+        for _s, cube, _n, _o in table.rows_of(state):
+            c = Cube.from_string(cube)
+            left = [piece for part in left for piece in sharp(part, c)]
+        if left:
+            unspecified.append((state, tuple(sorted(p.to_string(n) for p in left))))
+    dont_care = tuple((r[0], r[1]) for r in table.rows if r[2] is None)
+    return TableReport(
+        reachable=reachable,
+        unreachable=tuple(s for s in table.states if s not in reached),
+        unspecified=tuple(unspecified),
+        dont_care_next=dont_care,
+        inputs=table.inputs,
+    )

@@ -1,0 +1,5 @@
+"""``python -m fsmsynth.cli``: the ``fsmsynth`` command."""
+
+from fsmsynth.cli import run
+
+run()

@@ -1,0 +1,253 @@
+"""Commands on one design: build, timing, compare and convert, and what they print.
+"""
+
+from __future__ import annotations
+
+import argparse
+import csv
+import io
+import json
+from pathlib import Path
+
+from fsmsynth.base.frozen import FrozenMap
+from fsmsynth.checks.timing import timing
+from fsmsynth.cli.arguments import (
+    encoding_arg,
+    read_table_arg,
+    storage_arg,
+    target_arg,
+    weights_arg,
+)
+from fsmsynth.cli.printing import CAUTION, article, minimization_lines, target_lines
+from fsmsynth.flows.build_options import BuildOptions
+from fsmsynth.flows.compare import compare
+from fsmsynth.flows.convert import convert_storage
+from fsmsynth.flows.files import write_all_if_changed
+from fsmsynth.flows.pipeline import Design, synthesize
+from fsmsynth.flows.project import (
+    design_files,
+    synthesize_with,
+)
+from fsmsynth.formats.delays_toml import read_delays
+
+
+def design_report(design: Design) -> dict[str, object]:
+    m = design.minimization
+    return {
+        "machine": design.table.name,
+        "storage": design.storage,
+        "encoding": {"method": design.encoding.method,
+                     "codes": {s: design.encoding.code_string(s)
+                               for s in design.encoded_table.states}},
+        "unused": design.unused,
+        "assignment": None if design.assignment is None else {
+            "cost": design.assignment.cost, "evaluated": design.assignment.evaluated,
+            "proven": design.assignment.proven, "interrupted": design.assignment.interrupted,
+            "timed_out": design.assignment.timed_out,
+            "scored_on": design.assignment.scored_on, "seconds": design.assignment.seconds},
+        "states": {"given": len(design.table.states), "encoded": len(design.encoded_table.states),
+                   "merged": [list(c) for c in m.merged] if m else [],
+                   "unreachable": list(m.unreachable) if m else [],
+                   "proven_minimal": m.proven if m else None},
+        "equations": {name: eq.expression for name, eq in design.equations.items()},
+        "cost": design.cost.as_dict(),
+        "logic": {"method": design.cover.method, "proven_minimal": design.cover.proven},
+        "flip_flops": [s.name for s in design.storages],
+        "verified": bool(design.verification),
+        "verification": design.verification.summary() if design.verification else None,
+        "invariants": design.invariants.summary() if design.invariants else None,
+        "glitches": [{"output": g.output, "kind": g.kind, "state": g.state, "inputs": g.inputs,
+                      "changing": g.changing, "next_state": g.next_state}
+                     for g in design.glitches.glitches],
+        "glitch_free": list(design.glitches.glitch_free),
+        "hazard_free_outputs": list(design.hazard_free),
+        "multi_bit_steps": [list(x) for x in design.multi_bit_steps],
+    }
+
+
+def build_command(args: argparse.Namespace) -> int:
+    table = read_table_arg(args)
+    storage = storage_arg(args.storage)
+    encoding = encoding_arg(args.encoding)
+    options = BuildOptions(
+        storage=tuple(storage) if isinstance(storage, list) else storage,
+        encoding=FrozenMap(encoding) if isinstance(encoding, dict) else encoding,
+        unused=args.unused, minimize=not args.no_minimize, logic=args.logic,
+        weights=weights_arg(args.weights), seed=args.seed, budget=args.budget,
+        width=args.width, clock_edge=args.clock_edge, jobs=args.jobs,
+        time_limit=args.time_limit, force=args.force, target=target_arg(args.target),
+        map_for=args.map_for, outputs=args.outputs, unit_distance=args.unit_distance,
+        hdl=tuple(args.hdl), testbench=args.testbench, cocotb=args.cocotb)
+    design = synthesize_with(table, options)
+    out = Path(args.out)
+    files = {out / name: text for name, text in design_files(design, options).items()}
+    if args.check:
+        stale = [str(p) for p, text in files.items()
+                 if not p.is_file() or p.read_bytes() != text.encode("utf-8")]
+        for path in stale:
+            print(f"stale: {path}")
+        if not stale:
+            print(f"up to date: {', '.join(str(p) for p in files)}")
+        return 1 if stale else 0
+    written = write_all_if_changed({str(p): text for p, text in files.items()})
+    if args.json:
+        report = design_report(design)
+        report["files"] = written
+        print(json.dumps(report, indent=2))
+        return 0
+    encoded = design.encoded_table
+    codes = ", ".join(f"{s}={design.encoding.code_string(s)}" for s in encoded.states)
+    kinds = (design.storage.upper() if design.storage != "mixed" else
+             "mixed (" + ", ".join(f"Q{b} {s.name.upper()}" for b, s in
+                                   enumerate(design.storages)) + ")")
+    print(f"{table.name}: {len(encoded.states)} states, {kinds} flip-flops, "
+          f"{design.encoding.method} encoding ({codes})")
+    if design.assignment is not None:
+        a = design.assignment
+        ending = (", interrupted: best so far" if a.interrupted else
+                  ", time limit reached: best so far" if a.timed_out else
+                  ", proven best" if a.proven else "")
+        print(f"state assignment ({design.encoding.method}): cost {a.cost:g} after "
+              f"{a.evaluated} assignments{ending}, scored on {a.scored_on} in {a.seconds:g} s")
+    if design.minimization is not None:
+        for line in minimization_lines(design.minimization, len(table.states)):
+            print(line)
+    print()
+    print("Equations:")
+    for eq in design.equations.values():
+        print(f"  {eq}")
+    c = design.two_level_cost or design.cost  # the two-level figures, on any target
+    print()
+    print("Cost (two-level):" if design.mapping is not None else "Cost:")
+    print(f"  product terms {c.product_terms}, literals {c.literals}")
+    print("  gates " + ", ".join(f"{k.upper()} {n}" for k, n in c.gates.items())
+          + f"; gate inputs {c.gate_inputs}")
+    print("  flip-flops " + ", ".join(f"{k.upper()} {n}" for k, n in c.flip_flops.items()))
+    print(f"  total {c.total:g} (gate inputs + flip-flop weights)")
+    proof = (", proven minimal sums of products" if design.cover.proven
+             else "" if design.cover.method == "heuristic" else ", time limit: not proven minimal")
+    print(f"  two-level minimization: {design.cover.method}{proof}")
+    if design.mapping is not None:
+        print()
+        for line in target_lines(design):
+            print(line)
+    print()
+    if args.unit_distance:
+        steps = design.multi_bit_steps
+        print("transitions more than one bit apart: " + (", ".join(
+            f"{a} -> {b} ({n} bits)" for a, b, n in steps) if steps else "none"))
+        print()
+    print("Glitches (two-level outputs"
+          + (", hazard-free covers" if design.hazard_free else "") + "):")
+    for line in design.glitches.lines():
+        print(f"  {line}")
+    print()
+    assert design.verification is not None
+    print(design.verification.summary())
+    if design.invariants is not None:
+        print(design.invariants.summary())
+    for path, changed in written.items():
+        print(f"{'wrote' if changed else 'unchanged'} {path}")
+    if not args.quiet:
+        print()
+        print(CAUTION)
+    return 0
+
+
+def timing_command(args: argparse.Namespace) -> int:
+    table = read_table_arg(args)
+    design = synthesize(table, storage_arg(args.storage), encoding_arg(args.encoding),
+                        logic=args.logic, clock_edge=args.clock_edge,
+                        target=target_arg(args.target), map_for=args.map_for)
+    report = timing(design, read_delays(args.delays) if args.delays else None)
+    if args.json:
+        def steps(path: tuple[object, ...]) -> list[dict[str, object]]:
+            return [{"element": s.element, "kind": s.kind, "net": s.net,  # type: ignore[attr-defined]
+                     "delay": s.delay, "arrival": s.arrival} for s in path]  # type: ignore[attr-defined]
+        print(json.dumps({"machine": table.name, "min_period_ps": report.min_period,
+                          "max_frequency_mhz": report.max_frequency,
+                          "worst_hold_slack_ps": report.worst_hold_slack,
+                          "hold_met": report.hold_met, "edge": report.edge,
+                          "critical_path": steps(report.critical_path),
+                          "hold_path": steps(report.hold_path),
+                          "input_to_output_ps": report.input_to_output}, indent=2))
+        return 0
+    print(f"{table.name}: {design.storage.upper()} flip-flops, {design.encoding.method} encoding")
+    for line in report.lines():
+        print(line)
+    if not args.quiet:
+        print("Delays are illustrative unless given with --delays: verify timing in the "
+              "target technology.")
+    return 0
+
+
+def compare_command(args: argparse.Namespace) -> int:
+    table = read_table_arg(args)
+    options = dict(storages=args.storages, encodings=args.encodings, logic=args.logic,
+                   weights=weights_arg(args.weights), target=target_arg(args.target),
+                   map_for=args.map_for)
+    if args.jobs > 1:
+        from concurrent.futures import ProcessPoolExecutor
+        with ProcessPoolExecutor(max_workers=args.jobs) as pool:
+            result = compare(table, executor=pool, **options)
+    else:
+        result = compare(table, **options)
+    if result.target == "two-level":
+        header = ["rank", "storage", "encoding", "flip_flops", "total", "gate_inputs",
+                  "product_terms", "literals", "not", "and", "or", "verified"]
+    else:
+        header = ["rank", "storage", "encoding", "flip_flops", "total", "logic_area",
+                  "flip_flop_area", "conversion_area", "depth", "cells", "verified"]
+    records = []
+    for rank, row in enumerate(result.rows, start=1):
+        gates = row.cost["gates"]
+        assert isinstance(gates, dict)
+        if result.target == "two-level":
+            records.append([rank, row.storage, row.encoding, " ".join(row.kinds), row.total,
+                            row.cost["gate_inputs"], row.cost["product_terms"],
+                            row.cost["literals"], gates.get("not", 0), gates.get("and", 0),
+                            gates.get("or", 0), row.verified])
+            continue
+        cells = row.cost["cells"]
+        storage = row.cost["storage"]
+        assert isinstance(cells, dict) and isinstance(storage, dict)
+        conversion = round(sum(float(v["conversion_area"]) for v in storage.values()), 4)
+        records.append([rank, row.storage, row.encoding, " ".join(row.kinds), row.total,
+                        row.cost["logic_area"], row.cost["flip_flop_area"], conversion,
+                        row.cost["depth"], " ".join(f"{k}:{n}" for k, n in cells.items()),
+                        row.verified])
+    if args.json:
+        print(json.dumps({"machine": result.machine,
+                          "designs": [dict(zip(header, r)) for r in records]}, indent=2))
+        return 0
+    if args.csv:
+        buffer = io.StringIO()
+        writer = csv.writer(buffer, lineterminator="\n")
+        writer.writerow(header)
+        writer.writerows(records)
+        print(buffer.getvalue(), end="")
+        return 0
+    texts = [[str(x if not isinstance(x, float) else f"{x:g}") for x in r] for r in records]
+    widths = [max(len(h), *(len(t[i]) for t in texts)) for i, h in enumerate(header)]
+    on = "" if result.target == "two-level" else f" on {result.target}"
+    print(f"{result.machine}: {len(records)} designs{on}, cheapest first")
+    for line in [header, *texts]:
+        print("  ".join(cell.ljust(w) for cell, w in zip(line, widths)).rstrip())
+    return 0
+
+
+def convert_command(args: argparse.Namespace) -> int:
+    result = convert_storage(args.target, using=args.using)
+    if args.json:
+        print(json.dumps({"target": result.target.name, "using": result.using.name,
+                          "equations": {p: e.expression for p, e in result.equations.items()},
+                          "verified": bool(result.design.verification)}, indent=2))
+        return 0
+    print(f"{result.target.title} from {article(result.using.title)} {result.using.title} "
+          f"({result.target.equation}):")
+    for eq in result.equations.values():
+        print(f"  {eq}")
+    assert result.design.verification is not None
+    print(result.design.verification.summary())
+    return 0
+

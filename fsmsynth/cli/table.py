@@ -1,0 +1,129 @@
+"""Commands on a state table itself: reduce, diagram, kmap and check.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import sys
+from dataclasses import replace
+from pathlib import Path
+
+from fsmsynth.base.errors import OptionError
+from fsmsynth.checks.invariants import check_invariants, constrain_outputs, kept_by_reduction
+from fsmsynth.checks.table_check import check_table
+from fsmsynth.cli.arguments import encoding_arg, read_table_arg, storage_arg
+from fsmsynth.cli.printing import minimization_lines
+from fsmsynth.flows.files import write_bytes_if_changed, write_if_changed
+from fsmsynth.flows.pipeline import synthesize
+from fsmsynth.stages.reduce import minimize_states
+from fsmsynth.writers.dot import render, suffix_format, write_netlist_dot, write_state_diagram
+from fsmsynth.writers.kmap import write_karnaugh
+from fsmsynth.writers.spec_toml import write_spec
+
+
+def reduce_command(args: argparse.Namespace) -> int:
+    table = read_table_arg(args)
+    result = minimize_states(constrain_outputs(table), reachable_only=not args.keep_unreachable,
+                             time_limit=args.time_limit)
+    kept = kept_by_reduction(table, result.table)
+    dropped = [t for t in table.invariants if t not in kept]
+    comment = (f"{table.name}: reduced by fsmsynth from {Path(args.spec).name} "
+               f"({len(table.states)} -> {len(result.table.states)} states)")
+    if table.invariants:
+        comment += ("\nits don't-care outputs were first fixed where an invariant needs it"
+                    + "".join(f"\ninvariant not carried over (it names states): {t}"
+                              for t in dropped))
+    text = write_spec(replace(result.table, invariants=kept), comment=comment, guards=True)
+    changed = write_if_changed(args.out, text) if args.out else False
+    if args.json:
+        print(json.dumps({
+            "machine": table.name, "method": result.method, "proven": result.proven,
+            "states_before": len(table.states), "states_after": len(result.table.states),
+            "classes": {s: sorted(m) for s, m in result.classes.items()},
+            "unreachable": list(result.unreachable), "input_classes": result.input_classes,
+            "file": args.out}, indent=2))
+        return 0
+    for line in minimization_lines(result, len(table.states)):
+        print(line)
+    for state, members in result.classes.items():
+        print(f"  {state} = {{{', '.join(sorted(members))}}}")
+    if args.out:
+        print(f"{'wrote' if changed else 'unchanged'} {args.out}")
+    else:
+        print()
+        print(text, end="")
+    return 0
+
+
+def diagram_command(args: argparse.Namespace) -> int:
+    table = read_table_arg(args)
+    if args.netlist:
+        design = synthesize(table, storage_arg(args.storage), encoding_arg(args.encoding))
+        text = write_netlist_dot(design.netlist)
+    else:
+        text = write_state_diagram(table)
+    if not args.out:
+        print(text, end="")
+        return 0
+    fmt = suffix_format(args.out)
+    if fmt is None:
+        changed = write_if_changed(args.out, text)
+    else:
+        try:
+            picture = render(text, fmt)
+        except FileNotFoundError as exc:
+            print(f"fsmsynth: error: {exc}; write a .dot file instead", file=sys.stderr)
+            return 2
+        changed = write_bytes_if_changed(args.out, picture)
+    print(f"{'wrote' if changed else 'unchanged'} {args.out}")
+    return 0
+
+
+def kmap_command(args: argparse.Namespace) -> int:
+    table = read_table_arg(args)
+    design = synthesize(table, storage_arg(args.storage), encoding_arg(args.encoding))
+    functions = design.functions
+    names = [f.name for f in functions.functions]
+    if args.signal and args.signal not in names:
+        raise OptionError(f"no signal {args.signal!r}: this design has {', '.join(names)}")
+    for f in functions.functions:
+        if args.signal in (None, f.name):
+            try:
+                text = write_karnaugh(f, functions.variables)
+            except ValueError as exc:
+                raise OptionError(str(exc)) from None
+            print(text)
+            print(f"  {design.equations[f.name]}")
+            print()
+    return 0
+
+
+def check_command(args: argparse.Namespace) -> int:
+    table = read_table_arg(args)
+    report = check_table(table)
+    kept = check_invariants(table)
+    status = 0 if kept else 2
+    if args.json:
+        broken = kept.violation
+        print(json.dumps({
+            "machine": table.name, "kind": table.kind, "states": list(table.states),
+            "inputs": list(table.inputs), "outputs": list(table.outputs), "reset": table.reset,
+            "unreachable": list(report.unreachable),
+            "unspecified": {s: list(c) for s, c in report.unspecified},
+            "dont_care_next": [list(x) for x in report.dont_care_next],
+            "invariants": {"hold": bool(kept), "conditions": list(table.invariants),
+                           "broken": None if broken is None else {
+                               "invariant": broken.invariant, "inputs": list(broken.inputs),
+                               "states": list(broken.states), "outputs": broken.outputs}},
+        }, indent=2))
+        return status
+    print(f"{args.spec}: valid {table.kind} table '{table.name}': {len(table.states)} states, "
+          f"{len(table.inputs)} inputs, {len(table.outputs)} outputs, reset {table.reset!r}")
+    for line in report.lines():
+        print(f"  note: {line}")
+    if report.completely_specified and not report.unreachable:
+        print("  every state reachable, every transition specified")
+    if table.invariants:
+        print(f"  {kept.summary()}")
+    return status

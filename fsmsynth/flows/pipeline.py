@@ -1,0 +1,454 @@
+"""The pipeline: state table to verified netlist, keeping every intermediate result."""
+
+from __future__ import annotations
+
+import math
+import time
+from collections.abc import Mapping, Sequence
+from dataclasses import dataclass, replace
+from functools import partial
+
+from fsmsynth.base.errors import InvariantError, OptionError, VerificationError
+from fsmsynth.base.frozen import FrozenMap
+from fsmsynth.base.names import port_bits, ports_of
+from fsmsynth.checks.hazards import hazard_free
+from fsmsynth.checks.invariants import check_invariants, constrain_outputs
+from fsmsynth.checks.verify import verify
+from fsmsynth.flows.design import Design
+from fsmsynth.logic.cost import DEFAULT_WEIGHTS, CostWeights, cost_of, logic_shape
+from fsmsynth.logic.cover import minimize_logic
+from fsmsynth.logic.cube import Cube
+from fsmsynth.logic.engine_lock import exclusive
+from fsmsynth.logic.functions import LogicFunctions
+from fsmsynth.map.realize import map_design
+from fsmsynth.map.targets import Target, target_named
+from fsmsynth.model.storage import STORAGES, Storage, storage_named
+from fsmsynth.model.table import StateTable
+from fsmsynth.stages.assign.adjacency import adjacency_search
+from fsmsynth.stages.assign.anneal import anneal_search
+from fsmsynth.stages.assign.exhaustive import exhaustive_search
+from fsmsynth.stages.assign.scoring import (
+    SEARCHES,
+    UNIT_DISTANCE_PENALTY,
+    Scorer,
+    SearchResult,
+    min_width,
+)
+from fsmsynth.stages.encode import Encoding, encode
+from fsmsynth.stages.equations import Equation
+from fsmsynth.stages.excite import excite
+from fsmsynth.stages.netlist import EDGES, build_netlist
+from fsmsynth.stages.reduce import minimize_states
+from fsmsynth.stages.reduce.tabulation import StateMinimization
+from fsmsynth.stages.registered import delayed_machine, registered_codes
+
+UNUSED_POLICIES = ("dont-care", "safe")
+MAX_EXTRA_WIDTH = 3
+"""Searched encodings take codes of up to this many bits more than the fewest (or one-hot
+width, when that is more)."""
+
+
+StorageChoice = str | Storage | Sequence[str | Storage] | Mapping[int, str | Storage]
+
+
+@exclusive
+def synthesize(table: StateTable, storage: StorageChoice = "d",
+               encoding: str | Mapping[str, int | str] = "binary", *,
+               unused: str = "dont-care", weights: CostWeights = DEFAULT_WEIGHTS,
+               logic: str = "heuristic", minimize: bool = True, check: bool = True,
+               seed: int = 0, budget: int | None = None, width: int | None = None,
+               clock_edge: str = "rising", jobs: int = 1, time_limit: float | None = None,
+               force: bool = False, target: str | Target = "two-level",
+               map_for: str = "area",
+               outputs: str | Mapping[str, str] = "combinational",
+               unit_distance: bool = False) -> Design:
+    """Synthesize ``table`` into equations and a netlist, and prove the result.
+
+    Parameters
+    ----------
+    table:
+        The machine.
+    storage:
+        Flip-flop kind for every state bit: ``"d"``, ``"t"``, ``"jk"``, ``"sr"`` or ``"de"``
+        (D with clock enable); a sequence or a mapping giving the kind of each state bit
+        (bit 0 first); or ``"per-bit"``: for the chosen encoding each bit's excitation is
+        independent, so each bit gets the kind whose own logic is cheapest; or ``"best"``:
+        the cheapest of ``"per-bit"`` and every single kind for all bits, so never costlier
+        than any of them.
+    encoding:
+        ``"binary"``, ``"gray"``, ``"one-hot"`` or a mapping from state to code
+        (see :func:`fsmsynth.stages.encode.encode`); or a search for cheap logic
+        (:mod:`fsmsynth.stages.assign`): ``"adjacency"`` (assignment rules), ``"exhaustive"``
+        (every assignment up to bit permutation, plus one-hot; proven best) or ``"anneal"``
+        (simulated annealing).  Searches score assignments with the storage kind asked for
+        (D when it is ``"best"``).
+    unused:
+        ``"dont-care"`` (cheapest) or ``"safe"`` (every unused code goes to reset in one clock).
+    weights:
+        Cost weights used to choose between shared and separate covers and for ``cost.total``.
+    logic:
+        Two-level minimizer: ``"heuristic"`` (Espresso), ``"exact"`` (proven minimum
+        covers), or ``"auto"`` (exact up to 10 variables, Espresso beyond); the chosen
+        one and whether it proved minimality are on ``design.cover``.
+    minimize:
+        Reduce the states first (:func:`fsmsynth.stages.reduce.minimize_states`, on by default).
+        A given encoding may then name states that were merged away; their codes are
+        ignored.
+    check:
+        Run :func:`fsmsynth.checks.verify.verify` (on by default).
+    seed, budget:
+        For ``"anneal"``: the random seed (same seed, same codes) and the number of steps
+        (default 400).  Ctrl-C stops a search and keeps the best found.
+    jobs:
+        Worker processes that share the scoring of a searched encoding (default 1: all in
+        this process); the result is the same.  Two on two cores halve the time of an
+        8-state exhaustive search.
+    time_limit:
+        Seconds for a searched encoding (default: none); when they run out, the best
+        assignment found so far is used and ``design.assignment.timed_out`` is set.
+    force:
+        Run ``"exhaustive"`` even beyond :data:`fsmsynth.stages.assign.EXHAUSTIVE_LIMIT`
+        assignments (refused otherwise, naming the count).
+    clock_edge:
+        ``"rising"`` (default) or ``"falling"``: the edge every flip-flop samples on.
+    width:
+        Code width in bits for ``"adjacency"``, ``"exhaustive"`` and ``"anneal"`` (default:
+        the fewest that fit); wider codes often simplify the logic.
+    target:
+        What the design is built from (:mod:`fsmsynth.map.targets`): ``"two-level"`` (default),
+        ``"nand2"``, ``"gates2"``, ``"cmos"``, ``"lut4"``, ``"lut6"``, ``"pterms:N"`` or a
+        :class:`~fsmsynth.map.targets.Target` (a cell library read from a file).  The covers
+        are factored and mapped onto it, the mapped netlist is verified, and ``cost.total``
+        is the target's area; ``"best"`` storage then picks by that area.
+    map_for:
+        ``"area"`` (default) or ``"delay"``: what technology mapping minimizes.
+    outputs:
+        ``"combinational"`` (default: minimum sums of products) or ``"hazard-free"``:
+        outputs get the consensus terms that remove every static hazard under a
+        single-input change (:func:`fsmsynth.checks.hazards.hazard_free`); or a mapping from
+        output name to one of those.  ``"registered"``: every output from a D flip-flop of
+        its own (:mod:`fsmsynth.stages.registered`); Moore timing is kept, Mealy outputs come one
+        clock later, and the netlist is verified against that (``design.reference``).
+        ``design.glitches`` reports what can still glitch.
+
+    Raises
+    ------
+    OptionError
+        Unknown storage kind, encoding or unused-code policy.
+    EncodingError
+        A given encoding that does not fit the table.
+    VerificationError
+        The netlist does not realize the table: a defect in fsmsynth, reported with its
+        counterexample rather than returned as a wrong design.
+    InvariantError
+        The table breaks one of its invariants (whatever its don't cares become), or the
+        netlist does; with the shortest input sequence from reset that shows it.
+
+    The table's invariants (:mod:`fsmsynth.checks.invariants`) are proven on the table first; then
+    the don't-care outputs that could break one are fixed before minimization
+    (:func:`fsmsynth.checks.invariants.constrain_outputs`), and the netlist is proven to keep them.
+
+    Examples
+    --------
+    >>> from fsmsynth import StateTable, synthesize
+    >>> t = StateTable.from_rows(name="count3", inputs=[], outputs=["last"], reset="a",
+    ...     rows=[("a", "", "b", "0"), ("b", "", "c", "0"), ("c", "", "a", "1")])
+    >>> print(synthesize(t, "t").equations["T0"])
+    T0 = Q1'
+    """
+    _check_arguments(table, weights, seed, unused, clock_edge)
+    _prove_on_table(table)
+    constrained = constrain_outputs(table)
+    reduction = minimize_states(constrained) if minimize else None
+    work = reduction.table if reduction else constrained
+    if reduction and isinstance(encoding, Mapping):
+        encoding = {s: c for s, c in encoding.items() if s in work.states or s not in table.states}
+    recipe = _Recipe(table=table, reduction=reduction, work=work, unused=unused,
+                     weights=weights, logic=logic, smooth=_smoothed(table, outputs),
+                     target=target_named(target), map_for=_map_goal(map_for))
+    codes, search = _state_codes(recipe, encoding, storage, seed, budget, width, jobs,
+                                 time_limit, force, unit_distance)
+    chosen = _built(recipe, codes, storage, outputs)
+    if clock_edge != "rising":
+        chosen = replace(chosen, netlist=replace(chosen.netlist, flip_flops=tuple(
+            replace(ff, edge=clock_edge) for ff in chosen.netlist.flip_flops)))
+    if search is not None:
+        chosen = replace(chosen, assignment=search)
+    return _proved(chosen) if check else chosen
+
+
+def _check_arguments(table: StateTable, weights: CostWeights, seed: int, unused: str,
+                     clock_edge: str) -> None:
+    """Refuse arguments of the wrong type or value before any work is done."""
+    if not isinstance(table, StateTable):
+        raise OptionError(f"synthesize() takes a StateTable (StateTable.from_rows, or "
+                          f"fsmsynth.formats.read_table), not {type(table).__name__}")
+    if not isinstance(weights, CostWeights):
+        raise OptionError(f"weights must be a CostWeights, not {weights!r}")
+    if isinstance(seed, bool) or not isinstance(seed, int):
+        raise OptionError(f"seed {seed!r}: give a whole number")
+    if unused not in UNUSED_POLICIES:
+        raise OptionError(f"unused codes {unused!r}: use one of {', '.join(UNUSED_POLICIES)}")
+    if clock_edge not in EDGES:
+        raise OptionError(f"clock edge {clock_edge!r}: use one of {', '.join(EDGES)}")
+
+
+def _prove_on_table(table: StateTable) -> None:
+    """The table's own invariants hold whatever its don't cares become, or InvariantError."""
+    if table.invariants:
+        on_table = check_invariants(table)
+        if not on_table:
+            raise InvariantError(f"{table.name}: {on_table.summary()}", on_table)
+
+
+def _map_goal(map_for: str) -> str:
+    if map_for not in ("area", "delay"):
+        raise OptionError(f"map for {map_for!r}: use 'area' or 'delay'")
+    return map_for
+
+
+@dataclass(frozen=True, slots=True)
+class _Recipe:
+    """What every candidate design of one :func:`synthesize` call shares: the table as given,
+    its reduction and the table that is encoded, and the options of logic and mapping."""
+
+    table: StateTable
+    reduction: StateMinimization | None
+    work: StateTable
+    unused: str
+    weights: CostWeights
+    logic: str
+    smooth: tuple[str, ...]
+    target: Target
+    map_for: str
+
+    def design(self, work: StateTable, codes: Encoding, storages: tuple[Storage, ...],
+               smooth: tuple[str, ...], output_offset: int | None = None) -> Design:
+        """One candidate: built from ``work`` with these codes and kinds, then mapped."""
+        return _mapped(_build(self.table, self.reduction, work, codes, storages, self.unused,
+                              self.weights, self.logic, smooth, output_offset),
+                       self.target, self.map_for)
+
+
+def _state_codes(recipe: _Recipe, encoding: str | Mapping[str, int | str],
+                 storage: StorageChoice, seed: int, budget: int | None, width: int | None,
+                 jobs: int, time_limit: float | None, force: bool, unit_distance: bool
+                 ) -> tuple[Encoding, SearchResult | None]:
+    """The state codes: from a search of :mod:`fsmsynth.stages.assign`, or as given."""
+    if isinstance(encoding, str) and encoding in SEARCHES:
+        return _search(recipe.work, encoding, storage, recipe.unused, recipe.weights,
+                       recipe.logic, seed, budget, width, jobs, time_limit, force,
+                       recipe.target, recipe.map_for, unit_distance)
+    if unit_distance:
+        raise OptionError("unit_distance applies to the adjacency, exhaustive and anneal "
+                          "encodings (gray already steps one bit along its numbering)")
+    if width is not None:
+        raise OptionError("width applies to adjacency, exhaustive and anneal encodings")
+    return encode(recipe.work, encoding), None
+
+
+def _built(recipe: _Recipe, codes: Encoding, storage: StorageChoice,
+           outputs: str | Mapping[str, str]) -> Design:
+    """The design for the storage asked for: registered outputs, the cheapest of every kind
+    (``"best"``), the cheapest kind per bit (``"per-bit"``), or the kinds given."""
+    work = recipe.work
+    if outputs == "registered":
+        if storage in ("best", "per-bit"):
+            raise OptionError("registered outputs: give one storage kind (or one per state "
+                              "bit); the output registers are D flip-flops")
+        if recipe.table.invariants and recipe.table.kind == "mealy":
+            raise OptionError("registered Mealy outputs move one clock later, so the "
+                              "invariants' timing would change: not supported yet")
+        machine = work if work.kind == "moore" else delayed_machine(work)
+        codes_r = registered_codes(machine, codes, delayed=work.kind == "mealy")
+        kinds = _per_bit(storage, codes.width) + (STORAGES["d"],) * len(work.outputs)
+        plain = _build(recipe.table, recipe.reduction, machine, codes_r, kinds, recipe.unused,
+                       recipe.weights, recipe.logic, (), output_offset=codes.width)
+        return _mapped(replace(plain, registered=machine), recipe.target, recipe.map_for)
+    if storage == "best":
+        candidates = [(k,) * codes.width for k in STORAGES.values()]
+        candidates.append(_cheapest_per_bit(work, codes, recipe.unused, recipe.weights,
+                                            recipe.logic))
+        designs = [recipe.design(work, codes, c, recipe.smooth)
+                   for c in dict.fromkeys(candidates)]
+        return min(designs, key=lambda d: (d.cost.total, d.cost.gate_inputs))
+    if storage == "per-bit":
+        kinds = _cheapest_per_bit(work, codes, recipe.unused, recipe.weights, recipe.logic)
+    else:
+        kinds = _per_bit(storage, codes.width)
+    return recipe.design(work, codes, kinds, recipe.smooth)
+
+
+def _search(table: StateTable, method: str, storage: StorageChoice, unused: str,
+            weights: CostWeights, logic: str, seed: int, budget: int | None,
+            width: int | None, jobs: int, time_limit: float | None,
+            force: bool, target: Target, map_for: str, unit_distance: bool = False
+            ) -> tuple[Encoding, SearchResult | None]:
+    """Codes chosen by one of the searches of :mod:`fsmsynth.stages.assign`."""
+    n = len(table.states)
+    k = width if width is not None else min_width(n)
+    if isinstance(k, bool) or not isinstance(k, int) or k < min_width(n):
+        raise OptionError(f"width {k!r} is too small for {n} states: give a whole number "
+                          f"of at least {min_width(n)} bits")
+    if k > max(min_width(n) + MAX_EXTRA_WIDTH, n):
+        raise OptionError(f"width {k} for {n} states: give at most "
+                          f"{max(min_width(n) + MAX_EXTRA_WIDTH, n)} bits (wider codes cost "
+                          "logic and search time without helping)")
+    if isinstance(jobs, bool) or not isinstance(jobs, int) or jobs < 1:
+        raise OptionError(f"jobs {jobs!r}: give a whole number of at least 1")
+    if budget is not None and (isinstance(budget, bool) or not isinstance(budget, int)
+                               or budget < 0):
+        raise OptionError(f"budget {budget!r}: give a whole number of steps >= 0")
+    if time_limit is not None and not (isinstance(time_limit, (int, float))
+                                       and math.isfinite(time_limit) and time_limit > 0):
+        raise OptionError(f"time limit {time_limit!r}: give a finite number of seconds > 0")
+    # A partial of a module function, not a closure: worker processes receive the scorer.
+    kinds = partial(_per_bit, "d" if storage in ("best", "per-bit") else storage)
+    score = Scorer(table=table, storages=kinds, unused=unused, weights=weights, logic=logic,
+                   target=target, map_for=map_for,
+                   unit_distance=UNIT_DISTANCE_PENALTY if unit_distance else 0.0)
+    started = time.perf_counter()
+    if method == "adjacency":
+        result = adjacency_search(score, table, k, jobs=jobs, time_limit=time_limit)
+    elif method == "exhaustive":
+        result = exhaustive_search(score, n, k, jobs, time_limit=time_limit, force=force)
+    else:
+        result = anneal_search(score, table, k, seed, 400 if budget is None else budget,
+                               jobs=jobs, time_limit=time_limit)
+    result = replace(result, seconds=round(time.perf_counter() - started, 3),
+                     scored_on=target.name)
+    return Encoding(method=method, width=result.width,
+                    codes=FrozenMap(dict(zip(table.states, result.codes)))), result
+
+
+def _per_bit(storage: StorageChoice, width: int) -> tuple[Storage, ...]:
+    if isinstance(storage, (str, Storage)):
+        return (storage_named(storage),) * width
+    if isinstance(storage, Mapping):
+        missing = [b for b in range(width) if b not in storage]
+        if missing or set(storage) - set(range(width)):
+            raise OptionError(f"storage per bit: give a kind for each of bits 0..{width - 1}")
+        return tuple(storage_named(storage[b]) for b in range(width))
+    kinds = tuple(storage_named(s) for s in storage)
+    if len(kinds) != width:
+        raise OptionError(f"storage per bit: {len(kinds)} kinds given for {width} state bits")
+    return kinds
+
+
+def _cheapest_per_bit(table: StateTable, codes: Encoding, unused: str, weights: CostWeights,
+                      logic: str) -> tuple[Storage, ...]:
+    """For each state bit, the kind whose own pin logic (minimized alone) costs least."""
+    excited = {kind.name: excite(table, codes, (kind,) * codes.width, unused=unused)
+               for kind in STORAGES.values()}
+    choice = []
+    for bit in range(codes.width):
+        best: tuple[float, str] | None = None
+        for kind in STORAGES.values():
+            functions = excited[kind.name]
+            pins = {f"{p}{bit}" for p in kind.pins}
+            own = LogicFunctions(
+                variables=functions.variables,
+                functions=tuple(f for f in functions.functions if f.name in pins),
+                exclusive=tuple(x for x in functions.exclusive if x[0] in pins))
+            shape = logic_shape(minimize_logic(own, weights, logic).terms)
+            price = cost_of(shape, {kind.name: 1}, weights).total
+            if best is None or price < best[0]:
+                best = (price, kind.name)
+        assert best is not None
+        choice.append(STORAGES[best[1]])
+    return tuple(choice)
+
+
+def _build(table: StateTable, reduction: StateMinimization | None, work: StateTable,
+           codes: Encoding, storages: tuple[Storage, ...], unused: str, weights: CostWeights,
+           logic: str, smooth: tuple[str, ...] = (), output_offset: int | None = None
+           ) -> Design:
+    functions = excite(work, codes, storages, unused=unused)
+    cover = minimize_logic(functions, weights, logic)
+    if codes.method == "outputs":
+        output_offset = 0
+    if output_offset is not None:
+        # Output j is state bit offset + j on every used code: a wire from that flip-flop.
+        terms = list(cover.terms)
+        for j, name in enumerate(work.outputs):
+            bit = output_offset + j
+            terms[cover.names.index(name)] = (Cube(care=1 << bit, value=1 << bit),)
+        cover = replace(cover, terms=tuple(terms))
+    if smooth:
+        n = len(cover.variables)
+        inputs = list(range(codes.width, n))
+        terms = list(cover.terms)
+        for name in smooth:
+            f = functions.function(name)
+            at = cover.names.index(name)
+            terms[at] = hazard_free(cover.terms[at], f.on, f.off, inputs, n)
+        cover = replace(cover, terms=tuple(terms))
+    equations = {name: Equation(signal=name, variables=cover.variables, terms=terms)
+                 for name, terms in zip(cover.names, cover.terms)}
+    netlist = build_netlist(table.name, table.inputs, table.outputs, cover, storages,
+                            codes.codes[work.reset])
+    flip_flops: dict[str, int] = {}
+    for s in storages:
+        flip_flops[s.name] = flip_flops.get(s.name, 0) + 1
+    cost = cost_of(logic_shape(cover.terms), flip_flops, weights)
+    return Design(table=table, minimization=reduction, storages=storages, encoding=codes,
+                  unused=unused, functions=functions, cover=cover, equations=equations,
+                  netlist=netlist, cost=cost, verification=None, hazard_free=smooth)
+
+
+OUTPUT_KINDS = ("combinational", "hazard-free", "registered")
+
+
+def _smoothed(table: StateTable, outputs: str | Mapping[str, str]) -> tuple[str, ...]:
+    """The output bits to make hazard-free (a vector output names all its bits)."""
+    if outputs == "registered":
+        return ()
+    ports = {port: port_bits(port, width) for port, width in ports_of(table.outputs)}
+    if isinstance(outputs, str):
+        outputs = dict.fromkeys(ports, outputs)
+    if not isinstance(outputs, Mapping):
+        raise OptionError(f"outputs {outputs!r}: give 'combinational', 'hazard-free' or a "
+                          "dict of output -> one of them")
+    chosen: list[str] = []
+    for name, kind in outputs.items():
+        if kind not in OUTPUT_KINDS:
+            raise OptionError(f"outputs of {name!r}: {kind!r}; use one of "
+                              f"{', '.join(OUTPUT_KINDS)}")
+        if kind == "registered":
+            raise OptionError("registered outputs apply to every output: give "
+                              "outputs='registered'")
+        if name not in ports:
+            raise OptionError(f"outputs: unknown output {name!r} (outputs: "
+                              f"{', '.join(ports) or 'none'})")
+        if kind == "hazard-free":
+            chosen += ports[name]
+    return tuple(b for b in table.outputs if b in chosen)
+
+
+def _mapped(design: Design, target: Target, goal: str) -> Design:
+    """``design`` built on ``target`` (unchanged for ``"two-level"``)."""
+    if target.kind == "two-level":
+        return design
+    mapping = map_design(design.table.name, design.table.inputs, design.table.outputs,
+                         design.cover, design.storages, design.netlist.reset_code, target, goal)
+    two = design.cost
+    cost = replace(two, total=round(mapping.area, 6), target=target.name,
+                   cells=mapping.cells, logic_area=round(mapping.logic_area, 6),
+                   flip_flop_area=round(mapping.flip_flop_area, 6), depth=mapping.depth,
+                   storage=mapping.storage)
+    return replace(design, netlist=mapping.netlist, cost=cost, mapping=mapping,
+                   two_level_cost=two)
+
+
+def _proved(design: Design) -> Design:
+    """The design with its verification, or VerificationError with the counterexample."""
+    safe = design.encoding.unused_cubes() if design.unused == "safe" else ()
+    proof = verify(design.netlist, design.reference, safe_unused=safe)
+    if not proof:
+        raise VerificationError(f"{design.table.name}: {proof.summary()}", proof)
+    if not design.table.invariants:
+        return replace(design, verification=proof)
+    kept = check_invariants(design.table, design.netlist)
+    if not kept:
+        raise InvariantError(f"{design.table.name}: {kept.summary()}", kept)
+    return replace(design, verification=proof, invariants=kept)

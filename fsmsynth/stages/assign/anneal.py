@@ -1,0 +1,83 @@
+"""State assignment by simulated annealing.
+
+Swap two states' codes, or move a state to an unused code; seeded and bounded by a step
+budget, started from the cheaper of binary and the ``adjacency`` result.
+
+References
+----------
+Kirkpatrick, S., Gelatt, C. D. and Vecchi, M. P., "Optimization by simulated annealing",
+*Science* 220, 1983.
+"""
+
+from __future__ import annotations
+
+import math
+import random
+import time
+from dataclasses import replace
+
+from fsmsynth.model.table import StateTable
+from fsmsynth.stages.assign.adjacency import adjacency_search
+from fsmsynth.stages.assign.scoring import Scorer, SearchResult, _Progress
+from fsmsynth.stages.encode import encode
+
+
+def anneal_search(score: Scorer, table: StateTable, width: int, seed: int,
+                  budget: int, *, jobs: int = 1,
+                  time_limit: float | None = None) -> SearchResult:
+    """Simulated annealing over assignments, deterministic for a given seed and budget.
+
+    Starts from the cheaper of binary and the ``adjacency`` result (whose scoring ``jobs``
+    shares); ``time_limit`` covers both phases and stops with the best found so far.
+    """
+    deadline = None if time_limit is None else time.monotonic() + time_limit
+    rng = random.Random(seed)
+    n = len(table.states)
+    cache: dict[tuple[int, ...], tuple[float, int]] = {}
+
+    def value(codes: tuple[int, ...]) -> tuple[float, int]:
+        if codes not in cache:
+            cache[codes] = score(codes, width)
+        return cache[codes]
+
+    rule = adjacency_search(score, table, width, jobs=jobs, time_limit=time_limit)
+    if rule.interrupted or rule.timed_out:
+        return rule
+    binary = encode(table, "binary")
+    starts = [tuple(binary.codes[s] for s in table.states)] if binary.width == width else []
+    try:
+        current = min([rule.codes, *starts], key=value)
+    except KeyboardInterrupt:
+        return replace(rule, interrupted=True)
+    best = current
+    progress = _Progress("anneal", budget, deadline)
+    temperature = max(1.0, value(current)[0] * 0.05)
+    cooling = (0.01) ** (1.0 / max(1, budget))
+    interrupted = timed_out = False
+    try:
+        for step in range(budget):
+            if deadline is not None and time.monotonic() > deadline:
+                timed_out = True
+                break
+            trial = list(current)
+            unused = sorted(set(range(1 << width)) - set(trial))
+            if unused and rng.random() < 0.5:
+                trial[rng.randrange(n)] = rng.choice(unused)
+            else:
+                a, b = rng.sample(range(n), 2) if n > 1 else (0, 0)
+                trial[a], trial[b] = trial[b], trial[a]
+            candidate = tuple(trial)
+            delta = value(candidate)[0] - value(current)[0]
+            if delta <= 0 or rng.random() < math.exp(-delta / temperature):
+                current = candidate
+                if value(current) < value(best):
+                    best = current
+            temperature *= cooling
+            progress.update(step + 1, value(best)[0])
+    except KeyboardInterrupt:
+        interrupted = True
+    finally:
+        progress.close()
+    return SearchResult(codes=best, width=width, cost=value(best)[0],
+                        evaluated=len(cache) + rule.evaluated, proven=False,
+                        interrupted=interrupted, timed_out=timed_out)

@@ -1,0 +1,103 @@
+"""Registered outputs: every output from a D flip-flop of its own.
+
+A Moore output register is loaded with the output of the next state, so it shows the
+present state's output exactly when the decoded output would: the timing is the table's,
+and the code of a state simply carries its output word as extra bits.
+
+A Mealy output register is loaded with the output the table gives for the present state and
+inputs, so the output appears one clock later.  The circuit is then a Moore machine whose
+states are pairs (state, last output word); :func:`delayed_machine` builds that machine from
+a table, and the netlist is verified against it (the registers reset to 0, so before the
+first clock edge the outputs are 0).  Don't-care output values are taken as 0 in the
+registers; where the table leaves the next state open, what the registers load there is
+open too (the table says that input does not happen in that state).
+"""
+
+from __future__ import annotations
+
+from collections import deque
+from typing import Any
+
+from fsmsynth.base.frozen import FrozenMap
+from fsmsynth.logic import bdd
+from fsmsynth.model.regions import state_regions
+from fsmsynth.model.table import StateTable
+from fsmsynth.stages.encode import Encoding
+
+
+def _word(out: str | None) -> str:
+    return (out or "").replace("-", "0")
+
+
+def _pieces(here: Any, n_out: int, keep: bool) -> list[tuple[Any, str | None, str]]:
+    """A state's input points split by (next state, output word); don't-care output bits
+    are 0, or with ``keep`` stay ``-``."""
+    pieces: list[tuple[Any, str | None, str]] = [(bdd.ONE, None, "")]
+    for nxt, points in here.next:
+        split = []
+        for p, n, w in pieces:
+            for part, to in ((p & points, nxt), (p & ~points, n)):
+                if not part.is_zero():
+                    split.append((part, to, w))
+        pieces = split
+    for o in range(n_out):
+        split = []
+        for p, n, w in pieces:
+            high = p & here.out_on[o]
+            parts: tuple[tuple[Any, str], ...]
+            if keep:
+                low = p & here.out_off[o]
+                parts = ((high, "1"), (low, "0"), (p & ~here.out_on[o] & ~here.out_off[o], "-"))
+            else:
+                parts = ((high, "1"), (p & ~here.out_on[o], "0"))
+            for part, ch in parts:
+                if not part.is_zero():
+                    split.append((part, n, w + ch))
+        pieces = split
+    return pieces
+
+
+def delayed_machine(table: StateTable, keep_dont_cares: bool = False) -> StateTable:
+    """The Moore machine a Mealy ``table`` with registered outputs is: states ``s/w`` for
+    state ``s`` entered with output word ``w`` (reset: ``w`` all 0), whose outputs are ``w``.
+    Only pairs reachable from reset are kept.  Don't-care output bits become 0 (the words
+    are then register contents, to be encoded), or with ``keep_dont_cares`` stay
+    don't cares (the machine to verify a netlist against)."""
+    assert table.kind == "mealy"
+    var = bdd.variables(len(table.inputs))
+    zero = "0" * len(table.outputs)
+    start = (table.reset, zero)
+    seen: dict[tuple[str, str], None] = {start: None}
+    queue = deque([start])
+    rows: list[tuple[str, str, str | None, None]] = []
+    regions = state_regions(table, var)
+    pieces = {s: _pieces(regions[s], len(table.outputs), keep_dont_cares)
+              for s in table.states}
+    while queue:
+        state, word = queue.popleft()
+        for points, nxt, out in pieces[state]:
+            target = None if nxt is None else (nxt, out)
+            if target is not None and target not in seen:
+                seen[target] = None
+                queue.append(target)
+            for cube in bdd.cubes_of(points, var):
+                rows.append((f"{state}/{word}", cube.to_string(len(table.inputs)),
+                             None if target is None else f"{target[0]}/{target[1]}", None))
+    names = [f"{s}/{w}" for s, w in seen]
+    return StateTable.from_rows(
+        name=table.name, kind="moore", inputs=table.inputs, outputs=table.outputs, rows=rows,
+        reset=f"{table.reset}/{zero}", states=names,
+        state_outputs={f"{s}/{w}": w for s, w in seen})
+
+
+def registered_codes(machine: StateTable, base: Encoding, delayed: bool) -> Encoding:
+    """``base`` with each state's output word appended as bits ``width .. width + m - 1``;
+    for a ``delayed`` machine (states ``s/w``) the base code is that of ``s``."""
+    result = {}
+    for state in machine.states:
+        word = _word(machine.output_cube_of(state))
+        own = state.rsplit("/", 1)[0] if delayed else state
+        result[state] = base.codes[own] | sum(1 << (base.width + j)
+                                              for j, ch in enumerate(word) if ch == "1")
+    return Encoding(method=f"{base.method}, outputs registered",
+                    width=base.width + len(machine.outputs), codes=FrozenMap(result))
