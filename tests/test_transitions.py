@@ -285,10 +285,11 @@ def test_bits_of_a_vector_must_be_whole_and_in_order() -> None:
                                     "most significant first: v[1], v[0]")
 
 
-def test_the_readme_example_compiles_and_its_design_verifies() -> None:
+def test_the_documented_example_compiles_and_its_design_verifies() -> None:
     from pathlib import Path
-    readme = (Path(__file__).resolve().parent.parent / "README.md").read_text()
-    block = readme[readme.index("table = StateTable.from_transitions("):]
+    guide = Path(__file__).resolve().parent.parent / "docs" / "guide" / "python-api.md"
+    text = guide.read_text()
+    block = text[text.index("table = StateTable.from_transitions("):]
     namespace: dict[str, Any] = {"StateTable": StateTable}
     exec(block[:block.index("```")], namespace)
     table = namespace["table"]

@@ -140,7 +140,7 @@ def parser() -> argparse.ArgumentParser:
     build.add_argument("--logic", default="heuristic", choices=LOGIC_METHODS,
                        help="two-level minimizer: heuristic (Espresso), exact, or auto "
                             "(exact up to 10 variables); default heuristic")
-    build.add_argument("--weights", help="cost weights TOML file (see README, Cost)")
+    build.add_argument("--weights", help="cost weights TOML file (docs/guide/synthesis.md)")
     build.add_argument("--clock-edge", default="rising", choices=("rising", "falling"),
                        help="edge the flip-flops sample on (default rising)")
     build.add_argument("--check", action="store_true",
@@ -182,7 +182,7 @@ def parser() -> argparse.ArgumentParser:
     tim.add_argument("--encoding", default="binary", type=str, help="as for build")
     tim.add_argument("--logic", default="heuristic", choices=LOGIC_METHODS)
     tim.add_argument("--clock-edge", default="rising", choices=("rising", "falling"))
-    tim.add_argument("--delays", help="delay model TOML file (see README, Timing)")
+    tim.add_argument("--delays", help="delay model TOML file (see docs/guide/checks.md, Timing)")
     tim.add_argument("--json", action="store_true", help="print JSON")
     tim.add_argument("-q", "--quiet", action="store_true",
                      help="leave out the note that the delays are illustrative")
@@ -213,7 +213,7 @@ def parser() -> argparse.ArgumentParser:
     comp.add_argument("--encodings", type=list_arg, default=list(DEFAULT_ENCODINGS),
                       help=f"comma-separated (default {','.join(DEFAULT_ENCODINGS)})")
     comp.add_argument("--logic", default="heuristic", choices=LOGIC_METHODS)
-    comp.add_argument("--weights", help="cost weights TOML file (see README, Cost)")
+    comp.add_argument("--weights", help="cost weights TOML file (docs/guide/synthesis.md)")
     comp.add_argument("--jobs", type=positive, default=1,
                       help="run designs on this many worker processes (default 1)")
     fmt = comp.add_mutually_exclusive_group()

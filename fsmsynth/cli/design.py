@@ -22,8 +22,9 @@ from fsmsynth.cli.printing import CAUTION, article, minimization_lines, target_l
 from fsmsynth.flows.build_options import BuildOptions
 from fsmsynth.flows.compare import compare
 from fsmsynth.flows.convert import convert_storage
+from fsmsynth.flows.design import Design
 from fsmsynth.flows.files import write_all_if_changed
-from fsmsynth.flows.pipeline import Design, synthesize
+from fsmsynth.flows.pipeline import synthesize
 from fsmsynth.flows.project import (
     design_files,
     synthesize_with,

@@ -3,7 +3,7 @@ mapped design."""
 
 from __future__ import annotations
 
-from fsmsynth.flows.pipeline import Design
+from fsmsynth.flows.design import Design
 from fsmsynth.stages.reduce.tabulation import StateMinimization
 
 CAUTION = (

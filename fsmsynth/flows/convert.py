@@ -10,7 +10,8 @@ from __future__ import annotations
 from collections.abc import Mapping
 from dataclasses import dataclass
 
-from fsmsynth.flows.pipeline import Design, synthesize
+from fsmsynth.flows.design import Design
+from fsmsynth.flows.pipeline import synthesize
 from fsmsynth.logic.engine_lock import exclusive
 from fsmsynth.model.storage import Storage, storage_named
 from fsmsynth.model.table import StateTable

@@ -144,6 +144,8 @@ def synthesize(table: StateTable, storage: StorageChoice = "d",
         The table breaks one of its invariants (whatever its don't cares become), or the
         netlist does; with the shortest input sequence from reset that shows it.
 
+    Notes
+    -----
     The table's invariants (:mod:`fsmsynth.checks.invariants`) are proven on the table first; then
     the don't-care outputs that could break one are fixed before minimization
     (:func:`fsmsynth.checks.invariants.constrain_outputs`), and the netlist is proven to keep them.

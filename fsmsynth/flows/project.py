@@ -25,9 +25,10 @@ from pathlib import Path
 from fsmsynth.base.errors import FsmSynthError, OutputError
 from fsmsynth.base.frozen import FrozenMap
 from fsmsynth.flows.build_options import BuildOptions, Project, ProjectSpec
+from fsmsynth.flows.design import Design
 from fsmsynth.flows.files import write_all_if_changed
 from fsmsynth.flows.parallel import each_as_done
-from fsmsynth.flows.pipeline import Design, synthesize
+from fsmsynth.flows.pipeline import synthesize
 from fsmsynth.formats import read_table
 from fsmsynth.model.table import StateTable
 from fsmsynth.version import __version__

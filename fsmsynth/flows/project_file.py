@@ -1,5 +1,5 @@
 """Read a project file: the specs of many machines, where their files go, and how each is
-built (see README, "Many machines: projects and sweeps").
+built (see docs/guide/projects.md).
 
 ```toml
 out = "build"                         # output folder, relative to this file (default build)

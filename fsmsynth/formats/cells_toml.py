@@ -1,4 +1,4 @@
-"""Read a cell library: fsmsynth's own TOML schema (documented in README, "Targets").
+"""Read a cell library: fsmsynth's own TOML schema (documented in docs/guide/targets.md).
 
 ::
 

@@ -1,4 +1,4 @@
-"""Read a timing delay model from TOML (see README, "Timing").
+"""Read a timing delay model from TOML (see docs/guide/checks.md, "Timing").
 
 ```toml
 clock_to_q = 60.0        # ps, flip-flop clock-to-output, longest

@@ -1,4 +1,4 @@
-"""Read fsmsynth's TOML state-table format (documented in README, "The spec format").
+"""Read fsmsynth's TOML state-table format (documented in docs/guide/spec-language.md).
 
 Every error names the file and line: TOML syntax errors carry the parser's position, and
 table errors are traced back to the line of the row, key or entry at fault.

@@ -1,4 +1,4 @@
-"""Read cost weights from TOML (see README, "Cost").
+"""Read cost weights from TOML (see docs/guide/synthesis.md, "Cost").
 
 ```toml
 gate_input = 1.0          # weight of each gate input

@@ -18,6 +18,10 @@ def _term_key(term: Cube) -> tuple[tuple[int, bool], ...]:
 class Equation:
     """``signal = sum of products`` over named variables.
 
+    ``str(eq)`` gives ``"J1 = Q0 x' + Q1"``: literals side by side, ``'`` for a complement,
+    ``+`` between products.  ``sympy.sympify(eq)`` (or :meth:`to_sympy`) gives the same
+    function as a sympy Boolean expression.
+
     Attributes
     ----------
     signal:
@@ -26,10 +30,6 @@ class Equation:
         Variable names, variable 0 first (``Q0``, ``Q1``, ..., then the inputs).
     terms:
         The product terms; ``()`` is the constant 0, a lone universe cube the constant 1.
-
-    ``str(eq)`` gives ``"J1 = Q0 x' + Q1"``: literals side by side, ``'`` for a complement,
-    ``+`` between products.  ``sympy.sympify(eq)`` (or :meth:`to_sympy`) gives the same
-    function as a sympy Boolean expression.
     """
 
     signal: str

@@ -1,4 +1,4 @@
-"""The netlist as JSON, in fsmsynth's own documented schema (see README, "JSON netlist").
+"""The netlist as JSON, in fsmsynth's own documented schema (docs/guide/commands.md).
 
 Schema ``fsmsynth-netlist``, version 1::
 
