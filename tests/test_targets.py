@@ -462,3 +462,57 @@ def test_random_mapped_designs_simulate_in_icarus(table: StateTable, storage: st
                     str(folder / "tb.v")], check=True)
     run = subprocess.run([vvp, "-N", str(folder / "sim")], capture_output=True, text=True)
     assert run.stdout.strip().splitlines()[-1].startswith("PASS"), run.stdout[-400:]
+
+
+MUX_LIB = """name = "{name}"
+
+[flip_flops]
+d = 5.0
+
+[[cell]]
+name = "INV"
+pins = ["a"]
+function = "~a"
+area = 0.5
+
+[[cell]]
+name = "NAND2"
+pins = ["a", "b"]
+function = "~(a & b)"
+area = 1
+
+[[cell]]
+name = "MUX2"
+pins = {pins}
+function = "s & b | ~s & a"
+area = 0.3
+"""
+
+
+def test_two_designs_on_libraries_with_a_same_named_cell_compile_together(
+        tmp_path: Path) -> None:
+    """Two libraries with a cell of one name but another pin order (so another truth table):
+    each design's bench passes with both designs compiled in either order.  Before cell
+    modules were named by their content, the first file's cell was taken by both."""
+    iverilog, vvp = need("iverilog"), need("vvp")
+    from fsmsynth.formats import read_table
+    from fsmsynth.writers.verilog import write_verilog
+    lib_a = parse_cells(MUX_LIB.format(name="lib_a", pins='["a", "b", "s"]'), "a.toml")
+    lib_b = parse_cells(MUX_LIB.format(name="lib_b", pins='["s", "a", "b"]'), "b.toml")
+    designs = {}
+    for spec, lib in (("greenhouse_vent.toml", lib_a), ("glass_kiln.toml", lib_b)):
+        table = read_table(EXAMPLES / spec)
+        design = synthesize(table, "d", target=lib)
+        assert any(g.cell == "MUX2" for g in design.netlist.gates), spec
+        (tmp_path / f"{table.name}.v").write_text(write_verilog(design.netlist))
+        (tmp_path / f"tb_{table.name}.v").write_text(write_testbench(table))
+        designs[table.name] = table
+    for name in designs:
+        for order in (list(designs), list(reversed(designs))):
+            sources = [str(tmp_path / f"tb_{name}.v")] + [str(tmp_path / f"{n}.v") for n in order]
+            subprocess.run([iverilog, "-g2005", "-o", str(tmp_path / "sim"), *sources],
+                           check=True)
+            run = subprocess.run([vvp, "-N", str(tmp_path / "sim")], capture_output=True,
+                                 text=True)
+            assert run.stdout.strip().splitlines()[-1].startswith("PASS"), (
+                name, order, run.stdout[-400:])

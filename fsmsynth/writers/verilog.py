@@ -98,11 +98,14 @@ def write_verilog(netlist: Netlist, *, header: str = "") -> str:
 
 
 def _table_module_name(g: Gate) -> str:
-    """``fs_lut4`` for a look-up table (its truth table a parameter), ``fs_cell_AOI21`` for a
-    library cell (its truth table fixed in the module)."""
+    """``fs_lut4`` for a look-up table (its truth table a parameter, so every LUT module of
+    that size is the same text), ``fs_cell_AOI21_3_1f`` for a library cell: its name, pin
+    count and truth table, so that two generated designs compiled together can share a cell
+    module only when its contents are the same (two libraries may give one name to
+    different functions or pin orders)."""
     if g.cell.startswith("LUT"):
         return f"{RESERVED_PREFIX}lut{len(g.inputs)}"
-    return f"{RESERVED_PREFIX}cell_{g.cell or f'table{len(g.inputs)}_{g.table:x}'}"
+    return f"{RESERVED_PREFIX}cell_{g.cell or 'table'}_{len(g.inputs)}_{g.table:x}"
 
 
 def _table_modules(netlist: Netlist) -> dict[str, tuple[int, int | None]]:
@@ -125,8 +128,10 @@ def _table_instance(g: Gate) -> str:
 
 
 def _table_module(module: str, n: int, table: int | None) -> list[str]:
-    """A look-up table module; ``table`` fixed for a library cell, else a parameter."""
-    guard = f"{module.upper()}_DEFINED"
+    """A look-up table module; ``table`` fixed for a library cell, else a parameter.  The
+    include guard keeps the module name's case: cell names that differ only in case name
+    different modules."""
+    guard = f"{module}_DEFINED"
     size = 1 << n
     if table is None:
         head = [f"// {n}-input look-up table: y is bit a of INIT.",

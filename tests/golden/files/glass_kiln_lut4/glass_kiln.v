@@ -146,8 +146,8 @@ endmodule
 /* verilator lint_on DECLFILENAME */
 `endif
 
-`ifndef FS_LUT2_DEFINED
-`define FS_LUT2_DEFINED
+`ifndef fs_lut2_DEFINED
+`define fs_lut2_DEFINED
 /* verilator lint_off DECLFILENAME */
 // 2-input look-up table: y is bit a of INIT.
 module fs_lut2 #(parameter [3:0] INIT = 4'h0) (
@@ -159,8 +159,8 @@ endmodule
 /* verilator lint_on DECLFILENAME */
 `endif
 
-`ifndef FS_LUT3_DEFINED
-`define FS_LUT3_DEFINED
+`ifndef fs_lut3_DEFINED
+`define fs_lut3_DEFINED
 /* verilator lint_off DECLFILENAME */
 // 3-input look-up table: y is bit a of INIT.
 module fs_lut3 #(parameter [7:0] INIT = 8'h0) (
@@ -172,8 +172,8 @@ endmodule
 /* verilator lint_on DECLFILENAME */
 `endif
 
-`ifndef FS_LUT4_DEFINED
-`define FS_LUT4_DEFINED
+`ifndef fs_lut4_DEFINED
+`define fs_lut4_DEFINED
 /* verilator lint_off DECLFILENAME */
 // 4-input look-up table: y is bit a of INIT.
 module fs_lut4 #(parameter [15:0] INIT = 16'h0) (

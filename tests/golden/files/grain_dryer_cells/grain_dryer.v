@@ -109,7 +109,7 @@ module grain_dryer (
     nand fs_u35 (fs_m79, fs_m42, fs_m50, fs_m77);  // NAND3
     not  fs_u36 (fs_m44, flame_ok);  // INV
     nand fs_u37 (fs_m45, fs_m17, fs_m44);  // NAND2
-    fs_cell_AOI21 fs_u38 (.a({door_open, fs_m20, fs_q2}), .y(fs_m83));
+    fs_cell_AOI21_3_7 fs_u38 (.a({door_open, fs_m20, fs_q2}), .y(fs_m83));
     nand fs_u39 (fs_m84, fs_m45, fs_m83);  // NAND2
     not  fs_u40 (fs_m86, fs_m68);  // INV
     nand fs_u41 (fs_m85, fs_m45, fs_m69);  // NAND2
@@ -147,11 +147,11 @@ endmodule
 /* verilator lint_on DECLFILENAME */
 `endif
 
-`ifndef FS_CELL_AOI21_DEFINED
-`define FS_CELL_AOI21_DEFINED
+`ifndef fs_cell_AOI21_3_7_DEFINED
+`define fs_cell_AOI21_3_7_DEFINED
 /* verilator lint_off DECLFILENAME */
 // Library cell: y is bit a of its truth table 8'h7.
-module fs_cell_AOI21 (
+module fs_cell_AOI21_3_7 (
     input  wire [2:0] a,
     output wire y
 );
