@@ -389,3 +389,28 @@ def test_an_inline_transition_array_reports_the_line_of_the_entry() -> None:
         parse_spec(text, "m.toml")
     assert str(caught.value) == ("m.toml:7: transition 2 (a -> a, guard 'level == 4'): "
                                  "constant 4 at column 10 does not fit 'level' (2 bits: 0 to 3)")
+
+
+def test_a_vector_bit_and_an_input_named_like_it_get_different_nets() -> None:
+    """``mode[1]`` and an input ``mode_1`` once shared the net of their complement (a
+    NetlistError on a legal spec)."""
+    table = StateTable.from_transitions(
+        name="m", reset="a", inputs={"mode": 2, "mode_1": 1}, outputs=["y"],
+        default_outputs={"y": 0},
+        transitions=[("a", "~mode[1] & ~mode_1", "b", {"y": 1}), ("a", "else", "a", {}),
+                     ("b", "~mode[0]", "a", {}), ("b", "else", "b", {"y": 1})])
+    assert synthesize(table, "d").verification
+
+
+@given(st.lists(st.tuples(st.from_regex(r"[a-z][a-z0-9_]{0,5}", fullmatch=True),
+                          st.integers(1, 3)),
+                min_size=1, max_size=6, unique_by=lambda p: p[0]))
+def test_complement_nets_are_one_to_one_over_legal_port_names(
+        ports: list[tuple[str, int]]) -> None:
+    from fsmsynth.base.names import port_bits
+    from fsmsynth.stages.netlist import complement_net
+
+    bits = [b for name, width in ports for b in port_bits(name, width if width > 1 else None)]
+    nets = [complement_net(b) for b in bits]
+    assert len(set(nets)) == len(nets)
+    assert not set(nets) & {f"fs_nq{k}" for k in range(8)} and not set(nets) & set(bits)

@@ -97,3 +97,17 @@ def test_build_writes_vhdl_beside_verilog(tmp_path: Path) -> None:
     assert "band : in std_logic_vector(2 downto 0);" in text
     assert "Caution: synchronise asynchronous inputs" in text
     assert main(["build", spec, "--hdl", "vhdl,edif", "-o", str(tmp_path)]) == 2
+
+
+def test_the_reserved_prefix_is_refused_in_any_case_for_vhdl() -> None:
+    """VHDL ignores case (IEEE 1076-2008, section 15.4: basic identifiers differing only in
+    case are the same; from memory), so an input ``FS_q0`` is the generated net ``fs_q0``."""
+    table = StateTable.from_rows(name="m", inputs=["FS_q0"], outputs=["y"], reset="a",
+                                 rows=[("a", "1", "b", "1"), ("a", "0", "a", "0"),
+                                       ("b", "-", "a", "0")])
+    with pytest.raises(TableError) as caught:
+        synthesize(table, "d").vhdl  # noqa: B018
+    assert caught.value.message == (
+        "input name 'FS_q0' starts with 'fs_' in another case; VHDL ignores case, so it "
+        "would clash with the generated nets that prefix is reserved for; rename it for VHDL "
+        "output")

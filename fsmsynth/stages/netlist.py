@@ -11,7 +11,7 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 
 from fsmsynth.base.errors import NetlistError
-from fsmsynth.base.names import RESERVED_PREFIX
+from fsmsynth.base.names import RESERVED_PREFIX, split_bit
 from fsmsynth.logic.cost import normal_terms
 from fsmsynth.logic.cover import Cover
 from fsmsynth.logic.cube import Cube
@@ -236,6 +236,19 @@ def checked_netlist(netlist: Netlist) -> Netlist:
                    clock=netlist.clock, reset=netlist.reset)
 
 
+def complement_net(name: str) -> str:
+    """The internal net that carries the complement of input ``name``: ``fs_n_start`` for a
+    1-bit input, ``fs_nv_mode_1`` for the bit ``mode[1]`` of a vector.
+
+    One-to-one over every legal port name: the two kinds have prefixes neither of which
+    starts the other, and a vector bit's index is the digits after the last underscore, so
+    ``mode[1]`` and an input named ``mode_1`` get different nets."""
+    bit = split_bit(name)
+    if bit is None:
+        return f"{RESERVED_PREFIX}n_{name}"
+    return f"{RESERVED_PREFIX}nv_{bit[0]}_{bit[1]}"
+
+
 def state_net(bit: int) -> str:
     """Net of state bit ``bit`` (flip-flop output)."""
     return f"{RESERVED_PREFIX}q{bit}"
@@ -265,7 +278,7 @@ def build_netlist(name: str, inputs: Sequence[str], outputs: Sequence[str], cove
     k = len(storages)
     var_nets = [state_net(b) for b in range(k)] + list(inputs)
     inverted_nets = [f"{RESERVED_PREFIX}nq{b}" for b in range(k)] + [
-        f"{RESERVED_PREFIX}n_{i.replace('[', '_').replace(']', '')}" for i in inputs]
+        complement_net(i) for i in inputs]
     gates: list[Gate] = []
 
     def new_gate(kind: str, ins: tuple[str, ...], out: str) -> None:

@@ -15,7 +15,7 @@ from __future__ import annotations
 from collections.abc import Sequence
 
 from fsmsynth.base.errors import TableError
-from fsmsynth.base.names import ports_of, split_bit
+from fsmsynth.base.names import RESERVED_PREFIX, ports_of, split_bit
 from fsmsynth.map.realize import characteristic_sop
 from fsmsynth.model.storage import Storage
 from fsmsynth.model.table import StateTable
@@ -47,6 +47,9 @@ def vhdl_problem(name: str) -> str | None:
         return "may hold only letters, digits and underscores in VHDL"
     if "__" in name or name.endswith("_"):
         return "has a double or trailing underscore, which VHDL forbids"
+    if name.lower().startswith(RESERVED_PREFIX):
+        return (f"starts with {RESERVED_PREFIX!r} in another case; VHDL ignores case, so it "
+                "would clash with the generated nets that prefix is reserved for")
     return None
 
 
