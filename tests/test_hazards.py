@@ -233,12 +233,23 @@ def test_registered_outputs_come_from_flip_flops_at_the_right_cycle(
         nxt, out = table.lookup(state, word)
         if table.kind == "moore":
             seen = trace[t][1]
-        elif t + 1 < len(trace) and nxt is not None:
-            seen = trace[t + 1][1]  # after an open next state, the register is open too
+        elif t + 1 < len(trace):
+            seen = trace[t + 1][1]  # one clock later, also where the next state is open
         else:
             break
         assert all(w in ("-", s) for w, s in zip(out, seen)), (t, state, word)
         state = nxt
+
+
+def test_a_registered_output_is_kept_where_the_next_state_is_open() -> None:
+    """The audit's reproduction: the row ("s0", "1", None, "1") specifies y = 1 with an open
+    next state; registered, y = 1 must appear one clock later (it was dropped)."""
+    from fsmsynth import simulate
+    table = StateTable.from_rows(name="alarm", inputs=["x"], outputs=["y"], reset="s0",
+                                 rows=[("s0", "0", "s0", "0"), ("s0", "1", None, "1")])
+    design = synthesize(table, "d", outputs="registered")
+    assert [o for _code, o in simulate(design.netlist, ["1", "0", "0"])] == ["0", "1", "0"]
+    assert synthesize(table, "d").verification  # and combinationally, at once: y = 1
 
 
 def test_registered_mealy_bench_passes_in_icarus(tmp_path: Path) -> None:

@@ -9,8 +9,9 @@ inputs, so the output appears one clock later.  The circuit is then a Moore mach
 states are pairs (state, last output word); :func:`delayed_machine` builds that machine from
 a table, and the netlist is verified against it (the registers reset to 0, so before the
 first clock edge the outputs are 0).  Don't-care output values are taken as 0 in the
-registers; where the table leaves the next state open, what the registers load there is
-open too (the table says that input does not happen in that state).
+registers.  Where the table leaves the next state open, an output it specifies there still
+appears one clock later: that next state is completed as the present state.  Where neither
+is specified, what the registers load is open too.
 """
 
 from __future__ import annotations
@@ -29,9 +30,9 @@ def _word(out: str | None) -> str:
     return (out or "").replace("-", "0")
 
 
-def _pieces(here: Any, n_out: int, keep: bool) -> list[tuple[Any, str | None, str]]:
-    """A state's input points split by (next state, output word); don't-care output bits
-    are 0, or with ``keep`` stay ``-``."""
+def _pieces(here: Any, n_out: int) -> list[tuple[Any, str | None, str]]:
+    """A state's input points split by (next state, output word), with ``-`` for a
+    don't-care output bit."""
     pieces: list[tuple[Any, str | None, str]] = [(bdd.ONE, None, "")]
     for nxt, points in here.next:
         split = []
@@ -43,18 +44,28 @@ def _pieces(here: Any, n_out: int, keep: bool) -> list[tuple[Any, str | None, st
     for o in range(n_out):
         split = []
         for p, n, w in pieces:
-            high = p & here.out_on[o]
-            parts: tuple[tuple[Any, str], ...]
-            if keep:
-                low = p & here.out_off[o]
-                parts = ((high, "1"), (low, "0"), (p & ~here.out_on[o] & ~here.out_off[o], "-"))
-            else:
-                parts = ((high, "1"), (p & ~here.out_on[o], "0"))
-            for part, ch in parts:
+            free = p & ~here.out_on[o] & ~here.out_off[o]
+            for part, ch in ((p & here.out_on[o], "1"), (p & here.out_off[o], "0"), (free, "-")):
                 if not part.is_zero():
                     split.append((part, n, w + ch))
         pieces = split
     return pieces
+
+
+def _loads(state: str, here: Any, n_out: int, keep: bool) -> list[tuple[Any, str | None, str]]:
+    """What the registers of ``state`` load: (input points, next state, output word).
+
+    Where the table leaves the next state open but specifies an output, the output must
+    still appear one clock later, so that next state is completed as ``state`` itself (a
+    valid choice for a don't care).  Don't-care output bits become 0, or with ``keep`` stay
+    ``-``; pieces that then say the same are joined."""
+    joined: dict[tuple[str | None, str], Any] = {}
+    for points, nxt, word in _pieces(here, n_out):
+        if nxt is None and word.strip("-"):
+            nxt = state
+        key = (nxt, word if keep else _word(word))
+        joined[key] = joined[key] | points if key in joined else points
+    return [(points, nxt, word) for (nxt, word), points in joined.items()]
 
 
 def delayed_machine(table: StateTable, keep_dont_cares: bool = False) -> StateTable:
@@ -62,7 +73,8 @@ def delayed_machine(table: StateTable, keep_dont_cares: bool = False) -> StateTa
     state ``s`` entered with output word ``w`` (reset: ``w`` all 0), whose outputs are ``w``.
     Only pairs reachable from reset are kept.  Don't-care output bits become 0 (the words
     are then register contents, to be encoded), or with ``keep_dont_cares`` stay
-    don't cares (the machine to verify a netlist against)."""
+    don't cares (the machine to verify a netlist against).  A specified output is never
+    dropped: where the next state is open, the machine stays (see :func:`_loads`)."""
     assert table.kind == "mealy"
     var = bdd.variables(len(table.inputs))
     zero = "0" * len(table.outputs)
@@ -71,11 +83,11 @@ def delayed_machine(table: StateTable, keep_dont_cares: bool = False) -> StateTa
     queue = deque([start])
     rows: list[tuple[str, str, str | None, None]] = []
     regions = state_regions(table, var)
-    pieces = {s: _pieces(regions[s], len(table.outputs), keep_dont_cares)
-              for s in table.states}
+    loads = {s: _loads(s, regions[s], len(table.outputs), keep_dont_cares)
+             for s in table.states}
     while queue:
         state, word = queue.popleft()
-        for points, nxt, out in pieces[state]:
+        for points, nxt, out in loads[state]:
             target = None if nxt is None else (nxt, out)
             if target is not None and target not in seen:
                 seen[target] = None
