@@ -112,3 +112,27 @@ def test_icarus_bench_fails_on_a_faulted_netlist(tmp_path: Path) -> None:
     run = simulate(faulted, table, tmp_path)
     assert run.returncode != 0
     assert "FAIL" in run.stdout + run.stderr
+
+
+@pytest.mark.parametrize("storage", sorted(STORAGES))
+def test_a_machine_of_one_state_needs_no_flip_flop(storage: str, tmp_path: Path) -> None:
+    """Two equivalent states reduce to one; its outputs are a function of the inputs alone,
+    so the design has no flip-flop (it had one D flip-flop holding a constant), lints clean
+    and passes its bench."""
+    table = StateTable.from_rows(
+        name="gate", inputs=["a", "b"], outputs=["y"], reset="s",
+        rows=[("s", "11", "t", "1"), ("s", "0-", "s", "0"), ("s", "10", "s", "0"),
+              ("t", "11", "t", "1"), ("t", "0-", "s", "0"), ("t", "10", "s", "0")])
+    design = synthesize(table, storage)
+    assert design.minimization is not None and len(design.minimization.table.states) == 1
+    assert design.netlist.flip_flops == () and design.cost.flip_flops == {}
+    assert design.verification and design.storage == "none"
+    (tmp_path / "gate.v").write_text(design.verilog)
+    (tmp_path / "tb.v").write_text(write_testbench(table))
+    subprocess.run([need("verilator"), "--lint-only", "-Wall", str(tmp_path / "gate.v")],
+                   check=True, capture_output=True)
+    subprocess.run([need("iverilog"), "-g2005", "-o", str(tmp_path / "sim"),
+                    str(tmp_path / "gate.v"), str(tmp_path / "tb.v")], check=True)
+    run = subprocess.run([need("vvp"), "-N", str(tmp_path / "sim")], capture_output=True,
+                         text=True)
+    assert run.stdout.strip().splitlines()[-1].startswith("PASS"), run.stdout[-400:]

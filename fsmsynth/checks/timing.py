@@ -151,15 +151,18 @@ class TimingReport:
 
     def lines(self) -> list[str]:
         """The report as text lines."""
-        out = [f"minimum clock period {self.min_period:g} ps "
-               f"(maximum frequency {self.max_frequency:.1f} MHz), {self.edge} edge",
-               "critical path:"]
-        out += [f"  {s.element:<14} {s.kind:<8} +{s.delay:<6g} at {s.arrival:g} ps  ({s.net})"
-                for s in self.critical_path]
-        status = "met" if self.hold_met else "VIOLATED"
-        out.append(f"hold {status}: worst slack {self.worst_hold_slack:g} ps")
-        out += [f"  {s.element:<14} {s.kind:<8} +{s.delay:<6g} at {s.arrival:g} ps  ({s.net})"
-                for s in self.hold_path]
+        if not self.critical_path and math.isinf(self.worst_hold_slack):
+            out = ["no flip-flops (one state): no clock period or hold constraint"]
+        else:
+            out = [f"minimum clock period {self.min_period:g} ps "
+                   f"(maximum frequency {self.max_frequency:.1f} MHz), {self.edge} edge",
+                   "critical path:"]
+            out += [f"  {s.element:<14} {s.kind:<8} +{s.delay:<6g} at {s.arrival:g} ps  "
+                    f"({s.net})" for s in self.critical_path]
+            status = "met" if self.hold_met else "VIOLATED"
+            out.append(f"hold {status}: worst slack {self.worst_hold_slack:g} ps")
+            out += [f"  {s.element:<14} {s.kind:<8} +{s.delay:<6g} at {s.arrival:g} ps  "
+                    f"({s.net})" for s in self.hold_path]
         if self.input_to_output is not None:
             out.append(f"input-to-output (Mealy) paths: up to {self.input_to_output:g} ps; "
                        "add the delay of what drives the inputs and reads the outputs")

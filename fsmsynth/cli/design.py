@@ -97,11 +97,14 @@ def build_command(args: argparse.Namespace) -> int:
         print(json.dumps(report, indent=2))
         return 0
     encoded = design.encoded_table
-    codes = ", ".join(f"{s}={design.encoding.code_string(s)}" for s in encoded.states)
-    kinds = (design.storage.upper() if design.storage != "mixed" else
+    codes = (", ".join(f"{s}={design.encoding.code_string(s)}" for s in encoded.states)
+             if design.encoding.width else "one state, no code bits")
+    kinds = ("no" if design.storage == "none" else
+             design.storage.upper() if design.storage != "mixed" else
              "mixed (" + ", ".join(f"Q{b} {s.name.upper()}" for b, s in
                                    enumerate(design.storages)) + ")")
-    print(f"{table.name}: {len(encoded.states)} states, {kinds} flip-flops, "
+    count = len(encoded.states)
+    print(f"{table.name}: {count} state{'s' if count != 1 else ''}, {kinds} flip-flops, "
           f"{design.encoding.method} encoding ({codes})")
     if design.assignment is not None:
         a = design.assignment
@@ -123,7 +126,8 @@ def build_command(args: argparse.Namespace) -> int:
     print(f"  product terms {c.product_terms}, literals {c.literals}")
     print("  gates " + ", ".join(f"{k.upper()} {n}" for k, n in c.gates.items())
           + f"; gate inputs {c.gate_inputs}")
-    print("  flip-flops " + ", ".join(f"{k.upper()} {n}" for k, n in c.flip_flops.items()))
+    print("  flip-flops " + (", ".join(f"{k.upper()} {n}" for k, n in c.flip_flops.items())
+                             or "none"))
     print(f"  total {c.total:g} (gate inputs + flip-flop weights)")
     proof = (", proven minimal sums of products" if design.cover.proven
              else "" if design.cover.method == "heuristic" else ", time limit: not proven minimal")
@@ -173,7 +177,8 @@ def timing_command(args: argparse.Namespace) -> int:
                           "hold_path": steps(report.hold_path),
                           "input_to_output_ps": report.input_to_output}, indent=2))
         return 0
-    print(f"{table.name}: {design.storage.upper()} flip-flops, {design.encoding.method} encoding")
+    kinds = "no" if design.storage == "none" else design.storage.upper()
+    print(f"{table.name}: {kinds} flip-flops, {design.encoding.method} encoding")
     for line in report.lines():
         print(line)
     if not args.quiet:

@@ -161,14 +161,18 @@ class Design:
 
     @property
     def storage(self) -> str:
-        """The storage kind name, or ``"mixed"`` when bits differ."""
+        """The storage kind name, ``"mixed"`` when bits differ, or ``"none"`` for a machine of
+        one state (it needs no flip-flop: its outputs are functions of the inputs)."""
         kinds = {s.name for s in self.storages}
+        if not kinds:
+            return "none"
         return kinds.pop() if len(kinds) == 1 else "mixed"
 
     def header(self) -> str:
         """Comment lines describing how the design was made."""
-        codes = ", ".join(f"{s}={self.encoding.code_string(s)}"
-                          for s in self.encoded_table.states)
+        codes = (", ".join(f"{s}={self.encoding.code_string(s)}"
+                           for s in self.encoded_table.states)
+                 if self.encoding.width else "one state, no code bits")
         storage = self.storage
         if storage == "mixed":
             storage += " (" + ", ".join(f"Q{b} {s.name}" for b, s in enumerate(self.storages)) + ")"

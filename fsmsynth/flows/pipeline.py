@@ -310,7 +310,10 @@ def _search(table: StateTable, method: str, storage: StorageChoice, unused: str,
                    target=target, map_for=map_for,
                    unit_distance=UNIT_DISTANCE_PENALTY if unit_distance else 0.0)
     started = time.perf_counter()
-    if method == "adjacency":
+    if n == 1 and width is None:  # one state needs no code bits: nothing to search
+        result = SearchResult(codes=(0,), width=0, cost=score((0,), 0)[0], evaluated=1,
+                              proven=True, interrupted=False)
+    elif method == "adjacency":
         result = adjacency_search(score, table, k, jobs=jobs, time_limit=time_limit)
     elif method == "exhaustive":
         result = exhaustive_search(score, n, k, jobs, time_limit=time_limit, force=force)

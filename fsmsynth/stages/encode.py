@@ -97,7 +97,7 @@ def encode(table: StateTable, method: str | Mapping[str, int | str] = "binary") 
             "or a mapping from state to code"
         )
     order = [table.reset] + [s for s in table.states if s != table.reset]
-    width = max(1, (len(order) - 1).bit_length())
+    width = (len(order) - 1).bit_length()  # 0 for one state: it needs no flip-flop
     gray = method == "gray"
     return Encoding(method=method, width=width, codes=FrozenMap(
         {s: (i ^ (i >> 1)) if gray else i for i, s in enumerate(order)}))

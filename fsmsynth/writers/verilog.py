@@ -49,6 +49,8 @@ def write_verilog(netlist: Netlist, *, header: str = "") -> str:
     decls += [f"output wire {_range(w)}{p}" for p, w in ports_of([p for p, _n in netlist.outputs])]
     # A vector port is marked unused when any of its bits is.
     unused_inputs = {(split_bit(i) or (i, 0))[0] for i in netlist.inputs if i not in read}
+    if not netlist.flip_flops:  # one state: every module keeps its clock and reset ports
+        unused_inputs |= {netlist.clock, netlist.reset}
     for idx, decl in enumerate(decls):
         sep = "," if idx < len(decls) - 1 else ""
         name = decl.split()[-1]
