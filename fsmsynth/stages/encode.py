@@ -62,11 +62,11 @@ def encode(table: StateTable, method: str | Mapping[str, int | str] = "binary") 
     method:
         ``"binary"`` or ``"gray"``: the reset state gets all zeros and the other states the
         following binary (or reflected Gray) numbers in declaration order, in
-        ``max(1, ceil(log2 n))`` bits.  ``"one-hot"``: one flip-flop per state, state ``i``
-        in declaration order sets bit ``i``.  ``"outputs"`` (Moore machines): bit ``j`` is
-        output ``j``, then the fewest extra bits that tell apart states sharing outputs, so
-        the outputs are flip-flop outputs.  A mapping gives each state its code, as an int
-        or as a string of 0/1 written most significant bit first.
+        ``ceil(log2 n)`` bits (none for one state).  ``"one-hot"``: one flip-flop per
+        state, state ``i`` in declaration order sets bit ``i``.  ``"outputs"`` (Moore
+        machines): bit ``j`` is output ``j``, then the fewest extra bits that tell apart
+        states sharing outputs, so the outputs are flip-flop outputs.  A mapping gives each
+        state its code, as an int or as a string of 0/1 written most significant bit first.
 
     Raises
     ------
