@@ -72,8 +72,8 @@ def test_bad_spec_exits_nonzero_without_traceback(tmp_path: Path) -> None:
 def test_unknown_encoding_is_a_clear_error(capsys: pytest.CaptureFixture[str]) -> None:
     assert main(["build", LOCKER, "--encoding", "johnson"]) == 2
     assert capsys.readouterr().err == ("fsmsynth: error: unknown encoding 'johnson': use one of "
-                                       "binary, gray, one-hot, outputs, or a mapping from state to "
-                                       "code\n")
+                                       "binary, gray, one-hot, outputs, adjacency, exhaustive, "
+                                       "anneal, or a mapping from state to code\n")
 
 
 SORTER = str(EXAMPLES / "conveyor_sorter.toml")

@@ -275,3 +275,46 @@ def test_ctrl_c_outside_a_search_is_one_line(tmp_path: Path) -> None:
     run = subprocess.run([sys.executable, "-c", code, "build", LOCKER, "-o", str(tmp_path)],
                          capture_output=True, text=True, env=env, timeout=60)
     assert run.returncode == 130 and run.stderr == "fsmsynth: interrupted\n"
+
+
+MOORE_WIDE = """name = "wide"
+kind = "moore"
+inputs = ["a", "b", "c", "d", "e", "f", "g"]
+outputs = ["y"]
+reset = "s"
+rows = [
+  ["s", "1111111", "t"],
+  ["s", "0------", "s"],
+  ["t", "-------", "s"],
+]
+
+[state_outputs]
+s = "0"
+t = "1"
+"""
+
+
+def test_kmap_draws_every_map_that_fits_and_lists_the_others(
+        tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    """D0 depends on 8 variables (no map), the Moore output y on Q0 alone: y is drawn and D0
+    listed (kmap stopped at D0 and drew nothing)."""
+    spec = tmp_path / "wide.toml"
+    spec.write_text(MOORE_WIDE)
+    assert main(["kmap", str(spec)]) == 0
+    out = capsys.readouterr().out
+    assert "y:\n" in out and "y = Q0" in out
+    assert out.rstrip().splitlines()[-1] == (
+        "not drawn (Karnaugh maps go up to 6 variables): D0 (8 variables)")
+    assert main(["kmap", str(spec), "D0"]) == 2
+    assert "D0 depends on 8 variables" in capsys.readouterr().err
+
+
+@pytest.mark.parametrize("name", ["k.jpg", "k.txt", "k"])
+def test_diagram_refuses_a_file_type_it_does_not_write(
+        tmp_path: Path, capsys: pytest.CaptureFixture[str], name: str) -> None:
+    out = tmp_path / name
+    assert main(["diagram", str(EXAMPLES / "parcel_locker.toml"), "-o", str(out)]) == 2
+    assert capsys.readouterr().err == (
+        f"fsmsynth: error: {out}: write .dot or .gv for Graphviz text, or .svg, .png or .pdf "
+        "for a picture\n")
+    assert not out.exists()

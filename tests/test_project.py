@@ -135,7 +135,16 @@ def test_one_bad_spec_is_reported_with_its_line_and_the_others_are_built(
     ('specs = ["*.toml"]\n\n[defaults]\nstorage = 3\n', 4, "storage must be"),
     ('specs = ["*.toml"]\n\n[spec.parcel_locker]\nstorag = "jk"\n', 4, "unknown option"),
     ('specs = ["*.toml"]\n\n[spec.nobody]\nstorage = "jk"\n', 3, "no spec named 'nobody'"),
-    ('specs = ["*.toml"]\n\n[defaults]\nhdl = ["verilog", "vhld"]\n', 3, "hdl"),
+    ('specs = ["*.toml"]\n\n[defaults]\nhdl = ["verilog", "vhld"]\n', 4, "hdl"),
+    # A bad value is located like an unknown key (it failed every design, unlocated).
+    ('specs = ["*.toml"]\n\n[defaults]\nstorage = "jj"\n', 4, "storage 'jj'"),
+    ('specs = ["*.toml"]\n\n[defaults]\nstorage = ["d", "kj"]\n', 4, "storage 'kj'"),
+    ('specs = ["*.toml"]\n\n[defaults]\nencoding = "binery"\n', 4, "encoding 'binery'"),
+    ('specs = ["*.toml"]\n\n[defaults]\nunused = "maybe"\n', 4, "unused 'maybe'"),
+    ('specs = ["*.toml"]\n\n[defaults]\ntarget = "lut9"\n', 4, "lut9"),
+    ('specs = ["*.toml"]\n\n[defaults]\njobs = 0\n', 4, "jobs 0"),
+    ('specs = ["*.toml"]\n\n[spec.parcel_locker]\noutputs = "latched"\n', 4,
+     "outputs 'latched'"),
     ('specs = ["*.toml"]\n\n[sweep]\nstorages = "d"\n', 4, "must be a list"),
 ])
 def test_project_file_errors_name_the_file_and_line(tmp_path: Path, body: str, line: int,
@@ -297,3 +306,26 @@ def test_sweep_and_build_all_on_a_local_dask_cluster_match_local_runs(
                      "--no-progress"]) == 0
     finally:
         cluster.close()
+
+
+def test_a_sweep_row_equals_the_project_build_with_the_same_options(tmp_path: Path) -> None:
+    """The plant project sets unused = "safe" (and registered outputs for the crossing): a
+    sweep of it must build with those, as build-all does (it used the defaults instead)."""
+    import csv
+    from dataclasses import replace
+
+    from fsmsynth.flows.project import synthesize_with
+
+    out = tmp_path / "rows.csv"
+    assert main(["sweep", str(PLANT), "--storages", "d", "--encodings", "binary",
+                 "--targets", "two-level", "--csv", str(out), "--jobs", "1",
+                 "--no-progress"]) == 0
+    rows = {r["machine"]: float(r["total"]) for r in csv.DictReader(out.open())}
+    differs = 0
+    for spec in read_project(PLANT).specs:
+        table = read_table(spec.path)
+        options = replace(spec.options, storage="d", encoding="binary", target="two-level")
+        assert rows[table.name] == synthesize_with(table, options).cost.total, table.name
+        plain = replace(options, unused="dont-care", outputs="combinational")
+        differs += synthesize_with(table, plain).cost.total != rows[table.name]
+    assert differs >= 3  # the project's options matter for these machines

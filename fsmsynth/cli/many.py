@@ -78,10 +78,11 @@ def build_all_command(args: argparse.Namespace) -> int:
 
 def sweep_command(args: argparse.Namespace) -> int:
     project = read_project(args.project)
-    tables, unreadable = [], []
+    tables, options, unreadable = [], [], []
     for spec in project.specs:  # a bad spec is reported and left out; the others are swept
         try:
             tables.append(read_table(spec.path))
+            options.append(spec.options)  # the project's options, as build-all uses them
         except FsmSynthError as exc:
             unreadable.append(str(exc))
             print(f"fsmsynth: error: {exc}", file=sys.stderr)
@@ -97,7 +98,7 @@ def sweep_command(args: argparse.Namespace) -> int:
     try:
         result = sweep(tables, choice(args.storages, "storages", "d"),
                        choice(args.encodings, "encodings", "binary"), targets,
-                       executor=executor, progress=progress)
+                       executor=executor, options=options, progress=progress)
     finally:
         close()
     files: dict[str | Path, bytes | str] = {}

@@ -18,7 +18,7 @@ from fsmsynth.flows.files import write_bytes_if_changed, write_if_changed
 from fsmsynth.flows.pipeline import synthesize
 from fsmsynth.stages.reduce import minimize_states
 from fsmsynth.writers.dot import render, suffix_format, write_netlist_dot, write_state_diagram
-from fsmsynth.writers.kmap import write_karnaugh
+from fsmsynth.writers.kmap import MAX_VARIABLES, support, write_karnaugh
 from fsmsynth.writers.spec_toml import write_spec
 
 
@@ -57,6 +57,7 @@ def reduce_command(args: argparse.Namespace) -> int:
 
 
 def diagram_command(args: argparse.Namespace) -> int:
+    fmt = suffix_format(args.out) if args.out else None  # a bad name fails before any work
     table = read_table_arg(args)
     if args.netlist:
         design = synthesize(table, storage_arg(args.storage), encoding_arg(args.encoding))
@@ -66,7 +67,6 @@ def diagram_command(args: argparse.Namespace) -> int:
     if not args.out:
         print(text, end="")
         return 0
-    fmt = suffix_format(args.out)
     if fmt is None:
         changed = write_if_changed(args.out, text)
     else:
@@ -87,8 +87,13 @@ def kmap_command(args: argparse.Namespace) -> int:
     names = [f.name for f in functions.functions]
     if args.signal and args.signal not in names:
         raise OptionError(f"no signal {args.signal!r}: this design has {', '.join(names)}")
+    skipped = []
     for f in functions.functions:
         if args.signal in (None, f.name):
+            width = len(support(f))
+            if width > MAX_VARIABLES and args.signal is None:
+                skipped.append(f"{f.name} ({width} variables)")
+                continue
             try:
                 text = write_karnaugh(f, functions.variables)
             except ValueError as exc:
@@ -96,6 +101,9 @@ def kmap_command(args: argparse.Namespace) -> int:
             print(text)
             print(f"  {design.equations[f.name]}")
             print()
+    if skipped:
+        print(f"not drawn (Karnaugh maps go up to {MAX_VARIABLES} variables): "
+              + ", ".join(skipped))
     return 0
 
 

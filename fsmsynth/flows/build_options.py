@@ -7,15 +7,71 @@ reads them from a project file.
 
 from __future__ import annotations
 
+import math
 from dataclasses import dataclass, field, fields
 from pathlib import Path
 
 from fsmsynth.base.errors import OptionError
 from fsmsynth.base.frozen import FrozenMap
+from fsmsynth.flows.pipeline import OUTPUT_KINDS, UNUSED_POLICIES
 from fsmsynth.logic.cost import DEFAULT_WEIGHTS, CostWeights
-from fsmsynth.map.targets import Target
+from fsmsynth.logic.cover import METHODS as LOGIC_METHODS
+from fsmsynth.map.targets import Target, target_named
+from fsmsynth.model.storage import STORAGES
+from fsmsynth.stages.assign.scoring import SEARCHES
+from fsmsynth.stages.encode import METHODS as ENCODE_METHODS
+from fsmsynth.stages.netlist import EDGES
 
 HDLS = ("verilog", "vhdl")
+ENCODINGS = (*ENCODE_METHODS, *SEARCHES)
+"""Every encoding by name: the direct ones and the searches."""
+CHOICES: dict[str, tuple[str, ...]] = {
+    "logic": LOGIC_METHODS, "unused": UNUSED_POLICIES, "outputs": OUTPUT_KINDS,
+    "clock_edge": EDGES, "map_for": ("area", "delay")}
+
+
+def _whole(value: object, least: int) -> bool:
+    return isinstance(value, int) and not isinstance(value, bool) and value >= least
+
+
+def option_problem(key: str, value: object) -> str | None:
+    """Why ``value`` is not a value of build option ``key`` (a field of
+    :class:`BuildOptions`), naming the choices; ``None`` when it is one.  Checked when
+    options are built, so that a project file's bad value is an error at its line, not a
+    failure of every design."""
+    kinds = sorted(STORAGES)
+    if key == "storage":
+        given = value if isinstance(value, tuple) else (value,)
+        wrong = [k for k in given if k not in STORAGES and (
+            isinstance(value, tuple) or k not in ("best", "per-bit"))]
+        if wrong or not given:
+            return (f"storage {wrong[0] if wrong else value!r}: use one of "
+                    f"{', '.join(kinds)}, best or per-bit, or one kind per state bit")
+    elif key == "encoding" and isinstance(value, str) and value not in ENCODINGS:
+        return (f"unknown encoding {value!r}: use one of {', '.join(ENCODINGS)}, or a mapping "
+                "from state to code")
+    elif key in CHOICES and value not in CHOICES[key]:
+        return f"{key} {value!r}: use one of {', '.join(CHOICES[key])}"
+    elif key == "target" and isinstance(value, str):
+        try:
+            target_named(value)
+        except OptionError as exc:
+            return str(exc)
+    elif key == "hdl" and (not value or not isinstance(value, tuple)
+                           or any(h not in HDLS for h in value)):
+        shown = ",".join(value) if isinstance(value, tuple) else repr(value)
+        return f"hdl {shown}: give verilog, vhdl or both"
+    elif key in ("jobs", "width") and value is not None and not _whole(value, 1):
+        return f"{key} {value!r}: give a whole number of at least 1"
+    elif key == "budget" and value is not None and not _whole(value, 0):
+        return f"budget {value!r}: give a whole number of steps >= 0"
+    elif key == "seed" and not _whole(value, -(2**63)):
+        return f"seed {value!r}: give a whole number"
+    elif key == "time_limit" and value is not None and not (
+            isinstance(value, (int, float)) and not isinstance(value, bool)
+            and math.isfinite(value) and value > 0):
+        return f"time_limit {value!r}: give a finite number of seconds > 0"
+    return None
 
 
 @dataclass(frozen=True, slots=True)
@@ -47,9 +103,10 @@ class BuildOptions:
     cocotb: bool = False
 
     def __post_init__(self) -> None:
-        unknown = [h for h in self.hdl if h not in HDLS]
-        if unknown or not self.hdl:
-            raise OptionError(f"hdl {','.join(self.hdl)}: give verilog, vhdl or both")
+        for f in fields(self):
+            problem = option_problem(f.name, getattr(self, f.name))
+            if problem:
+                raise OptionError(problem)
         if self.cocotb and "verilog" not in self.hdl:
             raise OptionError("cocotb runs the Verilog design in Icarus: keep verilog in hdl")
 

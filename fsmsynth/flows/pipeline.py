@@ -34,6 +34,7 @@ from fsmsynth.stages.assign.scoring import (
     SearchResult,
     min_width,
 )
+from fsmsynth.stages.encode import METHODS as ENCODE_METHODS
 from fsmsynth.stages.encode import Encoding, encode
 from fsmsynth.stages.equations import Equation
 from fsmsynth.stages.excite import excite
@@ -246,6 +247,10 @@ def _state_codes(recipe: _Recipe, encoding: str | Mapping[str, int | str],
                           "encodings (gray already steps one bit along its numbering)")
     if width is not None:
         raise OptionError("width applies to adjacency, exhaustive and anneal encodings")
+    if isinstance(encoding, str) and encoding not in ENCODE_METHODS:
+        raise OptionError(f"unknown encoding {encoding!r}: use one of "
+                          f"{', '.join((*ENCODE_METHODS, *SEARCHES))}, or a mapping from "
+                          "state to code")
     return encode(recipe.work, encoding), None
 
 

@@ -38,7 +38,7 @@ from typing import Any
 
 from fsmsynth.base.errors import FsmSynthError, SpecFileError
 from fsmsynth.base.frozen import FrozenMap
-from fsmsynth.flows.build_options import BuildOptions, Project, ProjectSpec
+from fsmsynth.flows.build_options import BuildOptions, Project, ProjectSpec, option_problem
 from fsmsynth.formats.cells_toml import read_cells
 from fsmsynth.formats.text_files import read_text
 from fsmsynth.formats.weights_toml import read_weights
@@ -157,6 +157,9 @@ def _spec(f: Path, defaults: Mapping[str, Any], own: Mapping[str, Any], base: Pa
             raise
         except FsmSynthError as exc:
             raise fail(f"{key}: {exc}", where(key), key) from None
+        problem = option_problem(key, value)
+        if problem:
+            raise fail(problem, where(key), key)
         values[key] = value
     try:
         options = BuildOptions(**values)

@@ -18,7 +18,7 @@ from concurrent.futures import Executor
 from dataclasses import asdict, dataclass, fields, replace
 from typing import Any
 
-from fsmsynth.base.errors import FsmSynthError
+from fsmsynth.base.errors import FsmSynthError, OptionError
 from fsmsynth.flows.build_options import DEFAULT_OPTIONS, BuildOptions
 from fsmsynth.flows.parallel import each_as_done
 from fsmsynth.flows.project import synthesize_with
@@ -136,7 +136,8 @@ def sweep_one(table: StateTable, storage: str, encoding: str, target: str | Targ
 def sweep(tables: Iterable[StateTable], storages: Sequence[str] = ("d",),
           encodings: Sequence[str] = ("binary",),
           targets: Sequence[str | Target] = ("two-level",), *,
-          executor: Executor | None = None, options: BuildOptions = DEFAULT_OPTIONS,
+          executor: Executor | None = None,
+          options: BuildOptions | Sequence[BuildOptions] = DEFAULT_OPTIONS,
           progress: bool = False) -> Sweep:
     """Build and prove every machine with every storage kind, encoding and target.
 
@@ -151,7 +152,10 @@ def sweep(tables: Iterable[StateTable], storages: Sequence[str] = ("d",),
         Where to run the designs: any :class:`concurrent.futures.Executor` (a process pool,
         ``dask.distributed.Client(address).get_executor()``); by default here, one by one.
     options:
-        The other build options, the same for every design (``unused``, ``logic``, ...).
+        The other build options (``unused``, ``outputs``, ``logic``, ...): one
+        :class:`~fsmsynth.BuildOptions` for every machine, or one per machine in the order
+        of ``tables`` (a project's per-spec options; ``fsmsynth sweep`` passes those).  The
+        sweep's storage, encoding and target replace theirs.
     progress:
         Show a progress bar (tqdm) on standard error.
 
@@ -163,19 +167,27 @@ def sweep(tables: Iterable[StateTable], storages: Sequence[str] = ("d",),
     """
     from tqdm import tqdm
 
-    tasks = [(table, s, e, t) for table in tables for s in storages for e in encodings
-             for t in targets]
+    tables = list(tables)
+    if isinstance(options, BuildOptions):
+        per_table = [options] * len(tables)
+    else:
+        per_table = list(options)
+        if len(per_table) != len(tables) or not all(
+                isinstance(o, BuildOptions) for o in per_table):
+            raise OptionError(f"options: give one BuildOptions, or one per table "
+                              f"({len(tables)}), not {len(per_table)} values")
+    tasks = [(table, s, e, t, own) for table, own in zip(tables, per_table) for s in storages
+             for e in encodings for t in targets]
     done: dict[int, SweepRow] = {}
     interrupted = False
     bar = tqdm(total=len(tasks), disable=not progress, unit="design")
     try:
         if executor is None:
-            for i, (table, s, e, t) in enumerate(tasks):
-                done[i] = sweep_one(table, s, e, t, options)
+            for i, task in enumerate(tasks):
+                done[i] = sweep_one(*task)
                 bar.update()
         else:
-            calls = [(table, s, e, t, options) for table, s, e, t in tasks]
-            for i, future in each_as_done(executor, sweep_one, calls):
+            for i, future in each_as_done(executor, sweep_one, tasks):
                 done[i] = future.result()
                 bar.update()
     except KeyboardInterrupt:

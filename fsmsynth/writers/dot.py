@@ -11,6 +11,7 @@ import shutil
 import subprocess
 from pathlib import Path
 
+from fsmsynth.base.errors import OptionError
 from fsmsynth.model.table import StateTable
 from fsmsynth.stages.netlist import Netlist
 
@@ -96,7 +97,18 @@ def render(dot_text: str, fmt: str = "svg") -> bytes:
     return done.stdout
 
 
+PICTURES = ("svg", "png", "pdf")
+"""Picture formats ``dot`` renders; ``.dot`` and ``.gv`` files get the DOT text itself."""
+
+
 def suffix_format(path: str | Path) -> str | None:
-    """``"svg"``/``"png"`` from a file name, or ``None`` for DOT text."""
+    """``"svg"``, ``"png"`` or ``"pdf"`` from a file name, ``None`` for DOT text (``.dot``,
+    ``.gv``); OptionError for any other name, which would otherwise get DOT text under a
+    picture's suffix."""
     ext = Path(path).suffix.lower().lstrip(".")
-    return ext if ext in ("svg", "png", "pdf") else None
+    if ext in ("dot", "gv"):
+        return None
+    if ext not in PICTURES:
+        raise OptionError(f"{path}: write .dot or .gv for Graphviz text, or .svg, .png or "
+                          ".pdf for a picture")
+    return ext

@@ -13,6 +13,8 @@ from collections.abc import Sequence
 from fsmsynth.logic.cube import Cube, bits_of
 from fsmsynth.logic.functions import Function
 
+MAX_VARIABLES = 6
+"""The widest function drawn: 4 variables make one map, 5 and 6 make 2 or 4 side by side."""
 
 def _gray(bits: int) -> list[int]:
     return [i ^ (i >> 1) for i in range(1 << bits)]
@@ -60,9 +62,9 @@ def write_karnaugh(function: Function, variables: Sequence[str]) -> str:
         When the function depends on more than 6 variables.
     """
     keep = support(function)
-    if len(keep) > 6:
+    if len(keep) > MAX_VARIABLES:
         raise ValueError(f"{function.name} depends on {len(keep)} variables: Karnaugh maps "
-                         "go up to 6")
+                         f"go up to {MAX_VARIABLES}")
     if len(keep) < len(variables):
         function = _project(function, keep)
         variables = [variables[i] for i in keep]
