@@ -125,7 +125,7 @@ def _table_instance(g: Gate) -> str:
     pins = "{" + ", ".join(reversed(g.inputs)) + "}"
     if g.cell.startswith("LUT"):
         init = f"{1 << n}'h{g.table:0{max(1, (1 << n) // 4)}x}"
-        return f"    {module} #(.INIT({init})) {g.name} (.a({pins}), .y({g.output}));"
+        return f"    {module} #(.TRUTH({init})) {g.name} (.a({pins}), .y({g.output}));"
     return f"    {module} {g.name} (.a({pins}), .y({g.output}));"
 
 
@@ -136,9 +136,9 @@ def _table_module(module: str, n: int, table: int | None) -> list[str]:
     guard = f"{module}_DEFINED"
     size = 1 << n
     if table is None:
-        head = [f"// {n}-input look-up table: y is bit a of INIT.",
-                f"module {module} #(parameter [{size - 1}:0] INIT = {size}'h0) ("]
-        body = "    assign y = INIT[a];"
+        head = [f"// {n}-input look-up table: y is bit a of its truth table TRUTH.",
+                f"module {module} #(parameter [{size - 1}:0] TRUTH = {size}'h0) ("]
+        body = "    assign y = TRUTH[a];"
     else:
         head = [f"// Library cell: y is bit a of its truth table {size}'h{table:x}.",
                 f"module {module} ("]

@@ -71,54 +71,54 @@ module glass_kiln (
     wire fs_m222;
     wire fs_m228;
 
-    fs_lut3 #(.INIT(8'h8e)) fs_u0 (.a({full_fuse, band[0], band[1]}), .y(fs_m23));
-    fs_lut2 #(.INIT(4'h2)) fs_u1 (.a({fs_q1, fs_q0}), .y(fs_m25));
-    fs_lut4 #(.INIT(16'hffdf)) fs_u2 (.a({cancel, door_shut, fs_q1, fs_q0}), .y(fs_m30));
-    fs_lut4 #(.INIT(16'hffbf)) fs_u3 (.a({fs_m30, fs_m23, band[2], fault}), .y(fs_m34));
-    fs_lut2 #(.INIT(4'he)) fs_u4 (.a({band[1], band[2]}), .y(fs_m39));
-    fs_lut3 #(.INIT(8'hab)) fs_u5 (.a({band[1], band[2], door_shut}), .y(fs_m42));
-    fs_lut2 #(.INIT(4'h4)) fs_u6 (.a({fs_q1, fs_q0}), .y(fs_m46));
-    fs_lut4 #(.INIT(16'hdddc)) fs_u7 (.a({band[1], band[2], fault, door_shut}), .y(fs_m47));
-    fs_lut4 #(.INIT(16'h2223)) fs_u8 (.a({band[1], band[2], fault, door_shut}), .y(fs_m48));
-    fs_lut4 #(.INIT(16'h1fff)) fs_u9 (.a({fs_m48, fs_m46, soak_done, cancel}), .y(fs_m51));
-    fs_lut4 #(.INIT(16'hfffd)) fs_u10 (.a({band[0], band[1], band[2], fs_q1}), .y(fs_m58));
-    fs_lut4 #(.INIT(16'hf575)) fs_u11 (.a({fs_m58, fs_m48, cool_ok, fs_q0}), .y(fs_m63));
-    fs_lut4 #(.INIT(16'hfeff)) fs_u12 (.a({door_shut, fs_q2, fs_q1, fs_q0}), .y(fs_m72));
-    fs_lut3 #(.INIT(8'hfd)) fs_u13 (.a({fs_m72, fault, start}), .y(fs_m74));
-    fs_lut4 #(.INIT(16'h7fff)) fs_u14 (.a({fs_m74, fs_m63, fs_m51, fs_m34}), .y(fs_m80));
-    fs_lut4 #(.INIT(16'h7f57)) fs_u15 (.a({full_fuse, band[0], band[1], band[2]}), .y(fs_m81));
-    fs_lut4 #(.INIT(16'h8cae)) fs_u16 (.a({fs_m81, fs_m39, cancel, door_shut}), .y(fs_m87));
-    fs_lut4 #(.INIT(16'hfffd)) fs_u17 (.a({band[0], band[1], band[2], fs_q0}), .y(fs_m94));
-    fs_lut4 #(.INIT(16'hf575)) fs_u18 (.a({fs_m94, fs_m48, cool_ok, fs_q1}), .y(fs_m99));
-    fs_lut4 #(.INIT(16'h40ff)) fs_u19 (.a({fs_m99, fs_m87, fs_m25, fault}), .y(fs_m101));
-    fs_lut4 #(.INIT(16'hff7f)) fs_u20 (.a({fault, cancel, door_shut, fs_q2}), .y(fs_m108));
-    fs_lut4 #(.INIT(16'h50dc)) fs_u21 (.a({fs_m108, fs_m47, cool_ok, fs_q2}), .y(fs_m112));
-    fs_lut4 #(.INIT(16'h232b)) fs_u22 (.a({band[0], band[1], band[2], door_shut}), .y(fs_m119));
-    fs_lut4 #(.INIT(16'hfdf9)) fs_u23 (.a({soak_done, cancel, fs_q1, fs_q0}), .y(fs_m120));
-    fs_lut3 #(.INIT(8'h8f)) fs_u24 (.a({full_fuse, band[0], band[1]}), .y(fs_m127));
-    fs_lut3 #(.INIT(8'hef)) fs_u25 (.a({start, fs_q2, fs_q0}), .y(fs_m133));
-    fs_lut4 #(.INIT(16'h02ff)) fs_u26 (.a({fs_m133, fs_m127, cancel, fs_q0}), .y(fs_m135));
-    fs_lut3 #(.INIT(8'hbf)) fs_u27 (.a({fs_m135, door_shut, fs_q1}), .y(fs_m138));
-    fs_lut4 #(.INIT(16'h0455)) fs_u28 (.a({fs_m138, fs_m120, fs_m119, fault}), .y(fs_m142));
-    fs_lut4 #(.INIT(16'h6460)) fs_u29 (.a({soak_done, cancel, fs_q1, fs_q0}), .y(fs_m147));
-    fs_lut4 #(.INIT(16'hdcff)) fs_u30 (.a({fs_m147, fs_m39, fault, door_shut}), .y(fs_m148));
-    fs_lut4 #(.INIT(16'hfeff)) fs_u31 (.a({cool_ok, band[0], band[1], band[2]}), .y(fs_m153));
-    fs_lut4 #(.INIT(16'heeef)) fs_u32 (.a({band[1], band[2], door_shut, fs_q2}), .y(fs_m160));
-    fs_lut4 #(.INIT(16'hd555)) fs_u33 (.a({cool_ok, cancel, door_shut, fs_q2}), .y(fs_m165));
-    fs_lut4 #(.INIT(16'h8f0f)) fs_u34 (.a({fs_m153, fs_m148, fs_q1, fs_q0}), .y(fs_m167));
-    fs_lut4 #(.INIT(16'hffbf)) fs_u35 (.a({fs_m167, fs_m165, fs_m160, fault}), .y(fs_m173));
-    fs_lut4 #(.INIT(16'hfffb)) fs_u36 (.a({soak_done, cancel, fs_q1, fs_q0}), .y(fs_m175));
-    fs_lut2 #(.INIT(4'h4)) fs_u37 (.a({fs_m165, fault}), .y(fs_m180));
-    fs_lut4 #(.INIT(16'h7fff)) fs_u38 (.a({fs_m180, fs_m175, fs_m160, fs_m34}), .y(fs_m183));
-    fs_lut4 #(.INIT(16'h7f57)) fs_u39 (.a({full_fuse, band[0], band[1], band[2]}), .y(fs_m189));
-    fs_lut4 #(.INIT(16'hfffd)) fs_u40 (.a({fault, cancel, fs_q1, fs_q0}), .y(fs_m195));
-    fs_lut4 #(.INIT(16'hff4c)) fs_u41 (.a({fs_m195, fs_m189, fs_m39, door_shut}), .y(fs_m197));
-    fs_lut4 #(.INIT(16'hefff)) fs_u42 (.a({start, door_shut, fs_q1, fs_q0}), .y(fs_m201));
-    fs_lut4 #(.INIT(16'hfaea)) fs_u43 (.a({fs_m201, fs_m42, fault, fs_q2}), .y(fs_m206));
-    fs_lut4 #(.INIT(16'hbfff)) fs_u44 (.a({fs_m206, fs_m197, fs_m165, fault}), .y(fs_m210));
-    fs_lut2 #(.INIT(4'h6)) fs_u45 (.a({fs_m80, fs_q0}), .y(fs_m216));
-    fs_lut2 #(.INIT(4'h6)) fs_u46 (.a({fs_m101, fs_q1}), .y(fs_m222));
-    fs_lut2 #(.INIT(4'h6)) fs_u47 (.a({fs_m112, fs_q2}), .y(fs_m228));
+    fs_lut3 #(.TRUTH(8'h8e)) fs_u0 (.a({full_fuse, band[0], band[1]}), .y(fs_m23));
+    fs_lut2 #(.TRUTH(4'h2)) fs_u1 (.a({fs_q1, fs_q0}), .y(fs_m25));
+    fs_lut4 #(.TRUTH(16'hffdf)) fs_u2 (.a({cancel, door_shut, fs_q1, fs_q0}), .y(fs_m30));
+    fs_lut4 #(.TRUTH(16'hffbf)) fs_u3 (.a({fs_m30, fs_m23, band[2], fault}), .y(fs_m34));
+    fs_lut2 #(.TRUTH(4'he)) fs_u4 (.a({band[1], band[2]}), .y(fs_m39));
+    fs_lut3 #(.TRUTH(8'hab)) fs_u5 (.a({band[1], band[2], door_shut}), .y(fs_m42));
+    fs_lut2 #(.TRUTH(4'h4)) fs_u6 (.a({fs_q1, fs_q0}), .y(fs_m46));
+    fs_lut4 #(.TRUTH(16'hdddc)) fs_u7 (.a({band[1], band[2], fault, door_shut}), .y(fs_m47));
+    fs_lut4 #(.TRUTH(16'h2223)) fs_u8 (.a({band[1], band[2], fault, door_shut}), .y(fs_m48));
+    fs_lut4 #(.TRUTH(16'h1fff)) fs_u9 (.a({fs_m48, fs_m46, soak_done, cancel}), .y(fs_m51));
+    fs_lut4 #(.TRUTH(16'hfffd)) fs_u10 (.a({band[0], band[1], band[2], fs_q1}), .y(fs_m58));
+    fs_lut4 #(.TRUTH(16'hf575)) fs_u11 (.a({fs_m58, fs_m48, cool_ok, fs_q0}), .y(fs_m63));
+    fs_lut4 #(.TRUTH(16'hfeff)) fs_u12 (.a({door_shut, fs_q2, fs_q1, fs_q0}), .y(fs_m72));
+    fs_lut3 #(.TRUTH(8'hfd)) fs_u13 (.a({fs_m72, fault, start}), .y(fs_m74));
+    fs_lut4 #(.TRUTH(16'h7fff)) fs_u14 (.a({fs_m74, fs_m63, fs_m51, fs_m34}), .y(fs_m80));
+    fs_lut4 #(.TRUTH(16'h7f57)) fs_u15 (.a({full_fuse, band[0], band[1], band[2]}), .y(fs_m81));
+    fs_lut4 #(.TRUTH(16'h8cae)) fs_u16 (.a({fs_m81, fs_m39, cancel, door_shut}), .y(fs_m87));
+    fs_lut4 #(.TRUTH(16'hfffd)) fs_u17 (.a({band[0], band[1], band[2], fs_q0}), .y(fs_m94));
+    fs_lut4 #(.TRUTH(16'hf575)) fs_u18 (.a({fs_m94, fs_m48, cool_ok, fs_q1}), .y(fs_m99));
+    fs_lut4 #(.TRUTH(16'h40ff)) fs_u19 (.a({fs_m99, fs_m87, fs_m25, fault}), .y(fs_m101));
+    fs_lut4 #(.TRUTH(16'hff7f)) fs_u20 (.a({fault, cancel, door_shut, fs_q2}), .y(fs_m108));
+    fs_lut4 #(.TRUTH(16'h50dc)) fs_u21 (.a({fs_m108, fs_m47, cool_ok, fs_q2}), .y(fs_m112));
+    fs_lut4 #(.TRUTH(16'h232b)) fs_u22 (.a({band[0], band[1], band[2], door_shut}), .y(fs_m119));
+    fs_lut4 #(.TRUTH(16'hfdf9)) fs_u23 (.a({soak_done, cancel, fs_q1, fs_q0}), .y(fs_m120));
+    fs_lut3 #(.TRUTH(8'h8f)) fs_u24 (.a({full_fuse, band[0], band[1]}), .y(fs_m127));
+    fs_lut3 #(.TRUTH(8'hef)) fs_u25 (.a({start, fs_q2, fs_q0}), .y(fs_m133));
+    fs_lut4 #(.TRUTH(16'h02ff)) fs_u26 (.a({fs_m133, fs_m127, cancel, fs_q0}), .y(fs_m135));
+    fs_lut3 #(.TRUTH(8'hbf)) fs_u27 (.a({fs_m135, door_shut, fs_q1}), .y(fs_m138));
+    fs_lut4 #(.TRUTH(16'h0455)) fs_u28 (.a({fs_m138, fs_m120, fs_m119, fault}), .y(fs_m142));
+    fs_lut4 #(.TRUTH(16'h6460)) fs_u29 (.a({soak_done, cancel, fs_q1, fs_q0}), .y(fs_m147));
+    fs_lut4 #(.TRUTH(16'hdcff)) fs_u30 (.a({fs_m147, fs_m39, fault, door_shut}), .y(fs_m148));
+    fs_lut4 #(.TRUTH(16'hfeff)) fs_u31 (.a({cool_ok, band[0], band[1], band[2]}), .y(fs_m153));
+    fs_lut4 #(.TRUTH(16'heeef)) fs_u32 (.a({band[1], band[2], door_shut, fs_q2}), .y(fs_m160));
+    fs_lut4 #(.TRUTH(16'hd555)) fs_u33 (.a({cool_ok, cancel, door_shut, fs_q2}), .y(fs_m165));
+    fs_lut4 #(.TRUTH(16'h8f0f)) fs_u34 (.a({fs_m153, fs_m148, fs_q1, fs_q0}), .y(fs_m167));
+    fs_lut4 #(.TRUTH(16'hffbf)) fs_u35 (.a({fs_m167, fs_m165, fs_m160, fault}), .y(fs_m173));
+    fs_lut4 #(.TRUTH(16'hfffb)) fs_u36 (.a({soak_done, cancel, fs_q1, fs_q0}), .y(fs_m175));
+    fs_lut2 #(.TRUTH(4'h4)) fs_u37 (.a({fs_m165, fault}), .y(fs_m180));
+    fs_lut4 #(.TRUTH(16'h7fff)) fs_u38 (.a({fs_m180, fs_m175, fs_m160, fs_m34}), .y(fs_m183));
+    fs_lut4 #(.TRUTH(16'h7f57)) fs_u39 (.a({full_fuse, band[0], band[1], band[2]}), .y(fs_m189));
+    fs_lut4 #(.TRUTH(16'hfffd)) fs_u40 (.a({fault, cancel, fs_q1, fs_q0}), .y(fs_m195));
+    fs_lut4 #(.TRUTH(16'hff4c)) fs_u41 (.a({fs_m195, fs_m189, fs_m39, door_shut}), .y(fs_m197));
+    fs_lut4 #(.TRUTH(16'hefff)) fs_u42 (.a({start, door_shut, fs_q1, fs_q0}), .y(fs_m201));
+    fs_lut4 #(.TRUTH(16'hfaea)) fs_u43 (.a({fs_m201, fs_m42, fault, fs_q2}), .y(fs_m206));
+    fs_lut4 #(.TRUTH(16'hbfff)) fs_u44 (.a({fs_m206, fs_m197, fs_m165, fault}), .y(fs_m210));
+    fs_lut2 #(.TRUTH(4'h6)) fs_u45 (.a({fs_m80, fs_q0}), .y(fs_m216));
+    fs_lut2 #(.TRUTH(4'h6)) fs_u46 (.a({fs_m101, fs_q1}), .y(fs_m222));
+    fs_lut2 #(.TRUTH(4'h6)) fs_u47 (.a({fs_m112, fs_q2}), .y(fs_m228));
     fs_d_ff #(.RESET_VALUE(1'b0)) fs_ff0 (.clk(clk), .rst(rst), .d(fs_m216), .q(fs_q0));
     fs_d_ff #(.RESET_VALUE(1'b0)) fs_ff1 (.clk(clk), .rst(rst), .d(fs_m222), .q(fs_q1));
     fs_d_ff #(.RESET_VALUE(1'b0)) fs_ff2 (.clk(clk), .rst(rst), .d(fs_m228), .q(fs_q2));
@@ -149,12 +149,12 @@ endmodule
 `ifndef fs_lut2_DEFINED
 `define fs_lut2_DEFINED
 /* verilator lint_off DECLFILENAME */
-// 2-input look-up table: y is bit a of INIT.
-module fs_lut2 #(parameter [3:0] INIT = 4'h0) (
+// 2-input look-up table: y is bit a of its truth table TRUTH.
+module fs_lut2 #(parameter [3:0] TRUTH = 4'h0) (
     input  wire [1:0] a,
     output wire y
 );
-    assign y = INIT[a];
+    assign y = TRUTH[a];
 endmodule
 /* verilator lint_on DECLFILENAME */
 `endif
@@ -162,12 +162,12 @@ endmodule
 `ifndef fs_lut3_DEFINED
 `define fs_lut3_DEFINED
 /* verilator lint_off DECLFILENAME */
-// 3-input look-up table: y is bit a of INIT.
-module fs_lut3 #(parameter [7:0] INIT = 8'h0) (
+// 3-input look-up table: y is bit a of its truth table TRUTH.
+module fs_lut3 #(parameter [7:0] TRUTH = 8'h0) (
     input  wire [2:0] a,
     output wire y
 );
-    assign y = INIT[a];
+    assign y = TRUTH[a];
 endmodule
 /* verilator lint_on DECLFILENAME */
 `endif
@@ -175,12 +175,12 @@ endmodule
 `ifndef fs_lut4_DEFINED
 `define fs_lut4_DEFINED
 /* verilator lint_off DECLFILENAME */
-// 4-input look-up table: y is bit a of INIT.
-module fs_lut4 #(parameter [15:0] INIT = 16'h0) (
+// 4-input look-up table: y is bit a of its truth table TRUTH.
+module fs_lut4 #(parameter [15:0] TRUTH = 16'h0) (
     input  wire [3:0] a,
     output wire y
 );
-    assign y = INIT[a];
+    assign y = TRUTH[a];
 endmodule
 /* verilator lint_on DECLFILENAME */
 `endif
