@@ -133,3 +133,33 @@ def test_timing_and_its_model_are_public() -> None:
 
     assert {"timing", "TimingReport", "Delays", "GateDelay", "NetlistError"} <= set(
         fsmsynth.__all__)
+
+
+def test_a_subcommand_reports_an_unknown_option_with_its_own_usage(
+        capsys: pytest.CaptureFixture[str]) -> None:
+    with pytest.raises(SystemExit) as stop:
+        main(["diagram", LOCKER, "--target", "lut4"])
+    assert stop.value.code == 2
+    err = capsys.readouterr().err
+    assert err.startswith("usage: fsmsynth diagram ")
+    assert err.endswith("fsmsynth diagram: error: unrecognized arguments: --target lut4\n")
+
+
+@pytest.mark.parametrize("extra, message", [
+    (["--seed", "3"], "seed applies to the anneal encoding"),
+    (["--budget", "9", "--encoding", "adjacency"], "budget applies to the anneal encoding"),
+    (["--width", "3"], "width applies to adjacency, exhaustive and anneal encodings"),
+])
+def test_a_search_option_with_an_encoding_it_does_not_apply_to_is_refused(
+        capsys: pytest.CaptureFixture[str], extra: list[str], message: str) -> None:
+    """One rule for --seed, --budget and --width (seed and budget were ignored)."""
+    assert main(["build", LOCKER, *extra]) == 2
+    assert capsys.readouterr().err == f"fsmsynth: error: {message}\n"
+
+
+def test_build_help_lists_every_encoding(capsys: pytest.CaptureFixture[str]) -> None:
+    with pytest.raises(SystemExit):
+        main(["build", "--help"])
+    text = " ".join(capsys.readouterr().out.split())
+    for name in ("binary", "gray", "one-hot", "outputs", "adjacency", "exhaustive", "anneal"):
+        assert name in text.split("--encoding ENCODING")[-1].split("--seed")[0], name

@@ -81,7 +81,8 @@ def test_designs_repeat_after_other_syntheses(table: StateTable) -> None:
 @given(table=state_tables(min_states=3, max_states=6, max_inputs=3))
 def test_search_reports_the_cost_of_the_design_it_returns(table: StateTable) -> None:
     for method in ("adjacency", "exhaustive", "anneal"):
-        design = synthesize(table, "jk", method, budget=40, minimize=False)
+        design = synthesize(table, "jk", method, minimize=False,
+                            budget=40 if method == "anneal" else None)
         assert design.assignment is not None
         assert design.assignment.cost == design.cost.total, method
 

@@ -357,3 +357,15 @@ def test_build_proves_the_invariants_it_keeps(tmp_path: Path,
     assert main(["build", str(spec), "-o", str(tmp_path / "out"), "--quiet"]) == 0
     out = capsys.readouterr().out
     assert "2 invariants hold in every one of" in out and "reachable states of the netlist" in out
+
+
+def test_a_table_without_invariants_gets_an_empty_check_not_none() -> None:
+    """``design.invariants.summary()`` works on every verified design (it raised
+    AttributeError for tables without invariants)."""
+    table = StateTable.from_rows(name="m", inputs=["x"], outputs=["y"], reset="a",
+                                 rows=[("a", "1", "b", "1"), ("a", "0", "a", "0"),
+                                       ("b", "-", "a", "0")])
+    design = synthesize(table, "d")
+    assert design.invariants is not None and design.invariants
+    assert design.invariants.summary() == "no invariants to prove"
+    assert synthesize(table, "d", check=False).invariants is None

@@ -233,7 +233,11 @@ def build(transitions: list[tuple[Any, ...]], inputs: Any = None) -> StateTable:
      "cover it (transitions 1, 2)"),
     ([("a", "1", "a", {}), ("a", "else", "a", {})],
      "transition 2 (a -> a, guard 'else') can never fire: earlier guards of state 'a' cover "
-     "it (transitions 1)"),
+     "it (transition 1)"),
+    # An every-state transition that covers a state's own one is named as such.
+    ([("*", "start | ok", "a", {}), ("a", "start", "a", {})],
+     "transition 2 (a -> a, guard 'start') can never fire: earlier guards of state 'a' cover "
+     "it (transition 1 (for every state))"),
     ([("a", "start & ~start", "a", {})],
      "transition 1 (a -> a, guard 'start & ~start') can never fire: its guard never holds"),
 ])
@@ -336,6 +340,16 @@ def test_a_bad_guard_in_a_spec_file_names_the_file_and_the_transitions_line(
     assert err == (f"fsmsynth: error: {spec}:13: transition 2 (b -> a, guard 'halt | stop'): "
                    "unknown input 'stop' at column 8 (inputs: go, halt)\n")
     assert not (tmp_path / "out").exists()
+
+
+def test_an_output_value_too_wide_in_a_spec_file_names_the_transitions_line() -> None:
+    from fsmsynth.base.errors import SpecFileError
+    from fsmsynth.formats.spec_toml import parse_spec
+    with pytest.raises(SpecFileError) as caught:
+        parse_spec(GUARDED_SPEC.replace("{guard}", "halt").replace("z = 1", "z = 2"),
+                   "m.toml")
+    assert str(caught.value) == ("m.toml:7: transition 1 (a -> b, guard 'go & ~halt'): "
+                                 "value 2 does not fit output 'z' (1 bit: 0 to 1)")
 
 
 def test_the_bundled_guarded_example_builds_and_verifies() -> None:

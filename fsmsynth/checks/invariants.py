@@ -120,6 +120,8 @@ class InvariantCheck:
 
     def summary(self) -> str:
         """A line for reports."""
+        if not self.invariants:
+            return "no invariants to prove"
         if self.violation is not None:
             return "invariant broken: " + self.violation.describe()
         count = len(self.invariants)

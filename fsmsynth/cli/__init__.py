@@ -21,7 +21,9 @@ from fsmsynth.cli.table import check_command, diagram_command, kmap_command, red
 
 def main(argv: Sequence[str] | None = None) -> int:
     """Run the command line; returns the exit status (0 ok, 2 bad input, 1 failure)."""
-    args = parser().parse_args(argv)
+    args, extra = parser().parse_known_args(argv)
+    if extra:  # reported by the subcommand, with its usage (not the top level's)
+        args.command_parser.error(f"unrecognized arguments: {' '.join(extra)}")
     try:
         commands = {"build": build_command, "reduce": reduce_command,
                     "compare": compare_command, "timing": timing_command,

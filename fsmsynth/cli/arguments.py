@@ -114,8 +114,8 @@ def parser() -> argparse.ArgumentParser:
                        help=f"flip-flop kind: {', '.join(sorted(STORAGES))}, best (cheapest per "
                             "bit), or one kind per state bit, bit 0 first (jk,d); default d")
     build.add_argument("--encoding", default="binary", type=str,
-                       help="binary, gray, one-hot, adjacency, exhaustive, anneal, or "
-                            "state=code,... (default binary)")
+                       help="binary, gray, one-hot, outputs (Moore), adjacency, exhaustive, "
+                            "anneal, or state=code,... (default binary)")
     build.add_argument("--seed", type=int, default=0, help="seed of the anneal search (0)")
     build.add_argument("--budget", type=int, help="steps of the anneal search (default 400)")
     build.add_argument("--jobs", type=positive, default=1,
@@ -259,6 +259,8 @@ def parser() -> argparse.ArgumentParser:
                     help="add each design's wall time to the files (then two runs differ)")
     sw.add_argument("--progress", action=argparse.BooleanOptionalAction, default=None,
                     help="progress bar on standard error (default: when it is a terminal)")
+    for command in sub.choices.values():  # its own usage for its own mistakes
+        command.set_defaults(command_parser=command)
     return parser
 
 

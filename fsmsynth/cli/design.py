@@ -56,7 +56,8 @@ def design_report(design: Design) -> dict[str, object]:
         "flip_flops": [s.name for s in design.storages],
         "verified": bool(design.verification),
         "verification": design.verification.summary() if design.verification else None,
-        "invariants": design.invariants.summary() if design.invariants else None,
+        "invariants": (design.invariants.summary()
+                       if design.invariants and design.invariants.invariants else None),
         "glitches": [{"output": g.output, "kind": g.kind, "state": g.state, "inputs": g.inputs,
                       "changing": g.changing, "next_state": g.next_state}
                      for g in design.glitches.glitches],
@@ -149,7 +150,7 @@ def build_command(args: argparse.Namespace) -> int:
     print()
     assert design.verification is not None
     print(design.verification.summary())
-    if design.invariants is not None:
+    if design.invariants is not None and design.invariants.invariants:
         print(design.invariants.summary())
     for path, changed in written.items():
         print(f"{'wrote' if changed else 'unchanged'} {path}")

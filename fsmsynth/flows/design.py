@@ -67,8 +67,9 @@ class Design:
         For a searched encoding (``"exhaustive"``, ``"anneal"``): what the search found and
         how it ended (evaluations, proven, interrupted); ``None`` otherwise.
     invariants:
-        The proof that the table's invariants hold on the netlist (``None`` when the table
-        has none, or verification was skipped).
+        The proof that the table's invariants hold on the netlist: an empty check (truthy,
+        ``summary()`` "no invariants to prove") when the table has none; ``None`` only
+        when verification was skipped (``check=False``).
     mapping:
         On a target other than ``"two-level"``: the mapped design (cells, areas, depth,
         storage report, array fit); ``netlist`` and ``cost`` are then the mapped ones, and

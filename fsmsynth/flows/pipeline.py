@@ -12,7 +12,7 @@ from fsmsynth.base.errors import InvariantError, OptionError, VerificationError
 from fsmsynth.base.frozen import FrozenMap
 from fsmsynth.base.names import port_bits, ports_of
 from fsmsynth.checks.hazards import hazard_free
-from fsmsynth.checks.invariants import check_invariants, constrain_outputs
+from fsmsynth.checks.invariants import InvariantCheck, check_invariants, constrain_outputs
 from fsmsynth.checks.verify import verify
 from fsmsynth.flows.design import Design
 from fsmsynth.logic.cost import DEFAULT_WEIGHTS, CostWeights, cost_of, logic_shape
@@ -238,6 +238,9 @@ def _state_codes(recipe: _Recipe, encoding: str | Mapping[str, int | str],
                  jobs: int, time_limit: float | None, force: bool, unit_distance: bool
                  ) -> tuple[Encoding, SearchResult | None]:
     """The state codes: from a search of :mod:`fsmsynth.stages.assign`, or as given."""
+    for given, name in ((seed != 0, "seed"), (budget is not None, "budget")):
+        if given and encoding != "anneal":
+            raise OptionError(f"{name} applies to the anneal encoding")
     if isinstance(encoding, str) and encoding in SEARCHES:
         return _search(recipe.work, encoding, storage, recipe.unused, recipe.weights,
                        recipe.logic, seed, budget, width, jobs, time_limit, force,
@@ -456,8 +459,9 @@ def _proved(design: Design) -> Design:
     proof = verify(design.netlist, design.reference, safe_unused=safe)
     if not proof:
         raise VerificationError(f"{design.table.name}: {proof.summary()}", proof)
-    if not design.table.invariants:
-        return replace(design, verification=proof)
+    if not design.table.invariants:  # nothing to prove: an empty result, never None
+        return replace(design, verification=proof,
+                       invariants=InvariantCheck(invariants=(), walked=0, on="netlist"))
     kept = check_invariants(design.table, design.netlist)
     if not kept:
         raise InvariantError(f"{design.table.name}: {kept.summary()}", kept)

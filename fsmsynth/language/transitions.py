@@ -151,7 +151,10 @@ def compile_transitions(*, kind: str, inputs: object, outputs: object,
                                  "(state_outputs); give None here", state=frm, row=pos - 1)
             word = None
         else:
-            word = _output_word(out_widths, defaults, given, where)
+            try:
+                word = _output_word(out_widths, defaults, given, where)
+            except TableError as exc:  # located at the transition, for the spec file's line
+                raise TableError(exc.message, state=frm, row=pos - 1, name=exc.name) from None
         parsed.append((pos, frm, guard, points, to, word))
     # Declaration order (it fixes binary and Gray codes): present states as first written,
     # then states that only appear as next states.
@@ -163,6 +166,7 @@ def compile_transitions(*, kind: str, inputs: object, outputs: object,
     rows: list[tuple[str, str, str | None, str | None]] = []
     stay_word = None if kind == "moore" else _output_word(out_widths, defaults, {},
                                                           "default outputs")
+    every = {p[0] for p in parsed if p[1] == ANY_STATE}
     for state in states:
         chain = [p for p in parsed if p[1] == ANY_STATE] + [p for p in parsed if p[1] == state]
         covered = bdd.ZERO
@@ -171,10 +175,11 @@ def compile_transitions(*, kind: str, inputs: object, outputs: object,
             wanted = ~covered if points is None else points
             fires = wanted & ~covered
             if fires.is_zero():
-                blockers = [str(p) for p, g in earlier
-                            if points is None or not (g & wanted).is_zero()]
-                reason = (f"earlier guards of state {state!r} cover it (transitions "
-                          f"{', '.join(blockers)})" if blockers else "its guard never holds")
+                blockers = [f"{p} (for every state)" if p in every else str(p)
+                            for p, g in earlier if points is None or not (g & wanted).is_zero()]
+                reason = (f"earlier guards of state {state!r} cover it (transition"
+                          f"{'s' if len(blockers) > 1 else ''} {', '.join(blockers)})"
+                          if blockers else "its guard never holds")
                 raise TableError(f"transition {pos} ({state} -> {to}, guard {guard!r}) can "
                                  f"never fire: {reason}", state=state, row=pos - 1)
             for cube in bdd.cubes_of(fires, var):
