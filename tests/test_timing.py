@@ -131,3 +131,23 @@ def test_impossible_delays_in_a_file_name_the_file(tmp_path: Path,
         assert main(["timing", str(EXAMPLES / "greenhouse_vent.toml"), "--delays",
                      str(delays)]) == 2
         assert capsys.readouterr().err == f"fsmsynth: error: {delays}: {message}\n"
+
+
+def test_a_path_reads_as_a_time_line_of_nets() -> None:
+    """The path report is our own: one line per net, the time it settles first, then the net
+    and what drives it; the flip-flop pin's requirement closes the path."""
+    import re
+
+    from fsmsynth.formats import read_table
+    design = synthesize(read_table(EXAMPLES / "dock_leveler.toml"), "jk")
+    lines = timing(design.netlist).lines()
+    assert lines[1].startswith("slowest path, ") and lines[1].endswith(
+        "(each line: when the signal is there, which net, and how):")
+    steps = lines[2:lines.index(next(x for x in lines if x.startswith("hold ")))]
+    assert re.fullmatch(r" +\d+ ps  fs_q\d +from fs_ff\d \(jk ff\), \d+ ps after the edge",
+                        steps[0])
+    assert all(re.fullmatch(r" +\d+ ps  \S+ +through \S+ \((not|and|or)\), \d+ ps", x)
+               for x in steps[1:-1])
+    assert re.fullmatch(r" +\d+ ps +must be steady at fs_ff\d\.[jk]: setup \d+ ps before "
+                        r"the edge", steps[-1])
+    assert not any(re.search(r"\+\d+\s+at \d", x) for x in lines)

@@ -24,7 +24,7 @@ Morgan Kaufmann, 2013, section 3.5.2 (setup and hold time constraints), from mem
 from __future__ import annotations
 
 import math
-from collections.abc import Mapping
+from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, field
 from typing import Any
 
@@ -113,6 +113,30 @@ class PathStep:
     arrival: float
 
 
+def _path_lines(steps: Sequence[PathStep]) -> list[str]:
+    """A timing path as a time line: when each net on it settles and what drives it, then
+    what the flip-flop pin at its end requires."""
+    width = max((len(s.net) for s in steps[:-1]), default=0)
+    lines = []
+    for step in steps:
+        when = f"    {step.arrival:>7g} ps  "
+        if step.kind == "setup":
+            lines.append(f"{when}{'':<{width}}  must be steady at {step.element}: setup "
+                         f"{step.delay:g} ps before the edge")
+        elif step.kind == "hold":
+            lines.append(f"{when}{'':<{width}}  must stay until {step.element}: hold "
+                         f"{step.delay:g} ps after the edge")
+        elif step.kind == "input":
+            lines.append(f"{when}{step.net:<{width}}  input, {step.delay:g} ps after the edge")
+        elif step.kind.endswith(" ff"):
+            lines.append(f"{when}{step.net:<{width}}  from {step.element} ({step.kind}), "
+                         f"{step.delay:g} ps after the edge")
+        else:
+            lines.append(f"{when}{step.net:<{width}}  through {step.element} ({step.kind}), "
+                         f"{step.delay:g} ps")
+    return lines
+
+
 @dataclass(frozen=True, slots=True)
 class TimingReport:
     """Outcome of :func:`timing` (times in ps, frequency in MHz).
@@ -156,13 +180,13 @@ class TimingReport:
         else:
             out = [f"minimum clock period {self.min_period:g} ps "
                    f"(maximum frequency {self.max_frequency:.1f} MHz), {self.edge} edge",
-                   "critical path:"]
-            out += [f"  {s.element:<14} {s.kind:<8} +{s.delay:<6g} at {s.arrival:g} ps  "
-                    f"({s.net})" for s in self.critical_path]
+                   f"slowest path, {self.critical_path[-1].element} last "
+                   "(each line: when the signal is there, which net, and how):"]
+            out += _path_lines(self.critical_path)
             status = "met" if self.hold_met else "VIOLATED"
-            out.append(f"hold {status}: worst slack {self.worst_hold_slack:g} ps")
-            out += [f"  {s.element:<14} {s.kind:<8} +{s.delay:<6g} at {s.arrival:g} ps  "
-                    f"({s.net})" for s in self.hold_path]
+            out.append(f"hold {status}: worst slack {self.worst_hold_slack:g} ps, on the "
+                       f"fastest path to {self.hold_path[-1].element}:")
+            out += _path_lines(self.hold_path)
         if self.input_to_output is not None:
             out.append(f"input-to-output (Mealy) paths: up to {self.input_to_output:g} ps; "
                        "add the delay of what drives the inputs and reads the outputs")
