@@ -120,17 +120,17 @@ def test_impossible_delays_in_a_file_name_the_file(tmp_path: Path,
                                                    capsys: pytest.CaptureFixture[str]) -> None:
     delays = tmp_path / "d.toml"
     for text, message in [
-            ("setup = nan\n", "setup must be a finite number >= 0, not nan"),
-            ("clock_to_q_min = 90\n", "delay clock_to_q_min (90 ps) exceeds clock_to_q (60 ps): "
+            ("setup = nan\n", "1: setup must be a finite number >= 0, not nan"),
+            ("clock_to_q_min = 90\n", " delay clock_to_q_min (90 ps) exceeds clock_to_q (60 ps): "
                                       "the shortest delay cannot be longer than the longest"),
-            ("[gate.and]\nbase_min = 99\n", "[gate.and]: gate delay: the shortest delay "
+            ("[gate.and]\nbase_min = 99\n", "1: [gate.and]: gate delay: the shortest delay "
                                              "(102 ps at 2 inputs) exceeds the longest (33 ps); "
                                              "give base_min <= base and per_input_min <= "
                                              "per_input")]:
         delays.write_text(text)
         assert main(["timing", str(EXAMPLES / "greenhouse_vent.toml"), "--delays",
                      str(delays)]) == 2
-        assert capsys.readouterr().err == f"fsmsynth: error: {delays}: {message}\n"
+        assert capsys.readouterr().err == f"fsmsynth: error: {delays}:{message}\n"
 
 
 def test_a_path_reads_as_a_time_line_of_nets() -> None:
@@ -151,3 +151,68 @@ def test_a_path_reads_as_a_time_line_of_nets() -> None:
     assert re.fullmatch(r" +\d+ ps +must be steady at fs_ff\d\.[jk]: setup \d+ ps before "
                         r"the edge", steps[-1])
     assert not any(re.search(r"\+\d+\s+at \d", x) for x in lines)
+
+
+def _delay_file(tmp_path: Path, text: str) -> Path:
+    path = tmp_path / "d.toml"
+    path.write_text(text)
+    return path
+
+
+@pytest.mark.parametrize("text, message", [
+    ('[gate.mux]\nbase = 10\n', ":1: [gate.mux]: unknown gate kind; use and, buf, nand, nor, "
+     "not, or, xnor, xor (a target's cells go in [cell.NAME])"),
+    ('unit = "us"\n', ":1: unit 'us': use ps or ns"),
+    ('setup = 3\n[cell.AOI99]\ndelay = 20\n', ":2: [cell.AOI99]: the target has no cell "
+     "'AOI99' (cells: AOI21, AOI22, INV, MUX2, NAND2, NAND3, NAND4, NOR2, NOR3, NOR4, OAI21, "
+     "OAI22, XOR2)"),
+    ('[cell.AOI21]\nwait = 20\n', ":1: [cell.AOI21] takes delay, delay_min, not wait"),
+])
+def test_a_delay_file_mistake_is_an_error_at_its_line(
+        tmp_path: Path, capsys: pytest.CaptureFixture[str], text: str, message: str) -> None:
+    """An unknown gate kind was silently ignored; every mistake is now located."""
+    path = _delay_file(tmp_path, text)
+    assert main(["timing", str(EXAMPLES / "grain_dryer.toml"), "--target", "cmos",
+                 "--delays", str(path)]) == 2
+    assert capsys.readouterr().err == f"fsmsynth: error: {path}{message}\n"
+
+
+def test_a_delay_file_states_its_unit_and_every_value_is_in_it(tmp_path: Path) -> None:
+    from fsmsynth.formats.delays_toml import read_delays
+    delays = read_delays(_delay_file(tmp_path, (
+        'unit = "ns"\nclock_to_q = 0.1\nclock_to_q_min = 0.05\n'
+        '[gate.and]\nbase = 0.03\nbase_min = 0.01\n[cell.LUT4]\ndelay = 0.2\n'
+        'delay_min = 0.12\n')))
+    assert (delays.clock_to_q, delays.clock_to_q_min) == (100, 50)
+    assert (delays.gates["and"].base, delays.gates["and"].base_min) == (30, 10)
+    assert (delays.cells["LUT4"].longest(1), delays.cells["LUT4"].shortest(1)) == (200, 120)
+
+
+def test_cell_delays_from_the_file_replace_the_targets_own(
+        tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    """Every LUT at 500 ps: the slowest path is clock-to-Q plus a multiple of 500 ps plus
+    setup, and the note says the delays came from the file."""
+    path = _delay_file(tmp_path, "clock_to_q = 60\nsetup = 30\n[cell.LUT4]\ndelay = 500\n"
+                                 "[cell.LUT3]\ndelay = 500\n[cell.LUT2]\ndelay = 500\n")
+    assert main(["timing", str(EXAMPLES / "parcel_locker.toml"), "--target", "lut4",
+                 "--delays", str(path)]) == 0
+    out = capsys.readouterr().out
+    period = float(out.split("minimum clock period ")[1].split(" ps")[0])
+    assert (period - 90) % 500 == 0 and period > 90
+    assert "illustrative" not in out and f"Delays from {path}" in out
+
+
+def test_timing_times_the_netlist_build_writes(capsys: pytest.CaptureFixture[str]) -> None:
+    """timing takes the options that change the netlist (here unused codes and registered
+    outputs), so its report is that of the design build writes with them."""
+    from fsmsynth.flows.build_options import BuildOptions
+    from fsmsynth.flows.project import synthesize_with
+    spec = EXAMPLES / "rail_crossing.csv"
+    options = BuildOptions(unused="safe", outputs="registered", target="nand2")
+    expected = timing(synthesize_with(read_table(spec), options))
+    assert main(["timing", str(spec), "--unused", "safe", "--outputs", "registered",
+                 "--target", "nand2", "--json"]) == 0
+    report = json.loads(capsys.readouterr().out)
+    assert report["min_period_ps"] == expected.min_period
+    plain = timing(synthesize_with(read_table(spec), BuildOptions(target="nand2")))
+    assert plain.min_period != expected.min_period  # the options do change the netlist

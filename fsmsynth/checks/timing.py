@@ -78,6 +78,9 @@ class Delays:
         "xor": GateDelay(35, 10, base_min=18, per_input_min=4),
         "xnor": GateDelay(35, 10, base_min=18, per_input_min=4),
     }))
+    cells: Mapping[str, GateDelay] = field(default_factory=lambda: FrozenMap({}))
+    """Delays of named target cells (library cells, or LUTs as ``LUT4``), replacing the
+    target's own relative delays."""
     clock_to_q: float = 60.0
     clock_to_q_min: float = 40.0
     setup: float = 30.0
@@ -97,9 +100,9 @@ class Delays:
                 raise OptionError(f"delay {low} ({getattr(self, low):g} ps) exceeds {high} "
                                   f"({getattr(self, high):g} ps): the shortest delay cannot be "
                                   "longer than the longest")
-        for kind, model in self.gates.items():
+        for kind, model in (*self.gates.items(), *self.cells.items()):
             if not isinstance(model, GateDelay):
-                raise OptionError(f"delay of gate {kind!r} must be a GateDelay, not {model!r}")
+                raise OptionError(f"delay of {kind!r} must be a GateDelay, not {model!r}")
 
 
 @dataclass(frozen=True, slots=True)
@@ -197,8 +200,12 @@ _NONE = (-math.inf, None)
 
 
 def _gate_delay(g: Any, delays: Delays, longest: bool, cells: Mapping[str, float]) -> float:
-    """A gate's delay: a target cell's own delay (in units of the model's 2-input NAND),
-    else the model's delay of its kind and fan-in."""
+    """A gate's delay: the model's delay of its cell when it gives one, else a target cell's
+    own delay (in units of the model's 2-input NAND), else the model's delay of its kind and
+    fan-in."""
+    if g.cell in delays.cells:
+        own = delays.cells[g.cell]
+        return own.longest(1) if longest else own.shortest(1)
     if g.cell in cells:
         nand = delays.gates.get("nand")
         unit = (nand.longest(2) if longest else nand.shortest(2)) if nand else 1.0

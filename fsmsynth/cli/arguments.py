@@ -99,6 +99,47 @@ def read_table_arg(args: argparse.Namespace) -> StateTable:
     return read_table(args.spec, settings or None)
 
 
+def design_options(command: argparse.ArgumentParser) -> None:
+    """The options that shape a design: ``build`` and ``timing`` take the same, so that
+    ``timing`` times the netlist ``build`` writes."""
+    target_options(command)
+    command.add_argument("--storage", default="d", type=str,
+                         help=f"flip-flop kind: {', '.join(sorted(STORAGES))}, best (cheapest per "
+                              "bit), or one kind per state bit, bit 0 first (jk,d); default d")
+    command.add_argument("--encoding", default="binary", type=str,
+                         help="binary, gray, one-hot, outputs (Moore), adjacency, exhaustive, "
+                              "anneal, or state=code,... (default binary)")
+    command.add_argument("--seed", type=int, default=0, help="seed of the anneal search (0)")
+    command.add_argument("--budget", type=int, help="steps of the anneal search (default 400)")
+    command.add_argument("--jobs", type=positive, default=1,
+                         help="worker processes for a searched encoding (default 1)")
+    command.add_argument("--time-limit", type=seconds, default=None,
+                         help="seconds for a searched encoding; then the best found so far")
+    command.add_argument("--force", action="store_true",
+                         help="run an exhaustive search however many assignments it has")
+    command.add_argument("--width", type=int,
+                         help="code width in bits for adjacency, exhaustive and anneal")
+    command.add_argument("--unit-distance", action="store_true",
+                         help="searched encodings: codes one bit apart across every transition "
+                              "where possible (no function hazards there)")
+    command.add_argument("--outputs", default="combinational",
+                         choices=("combinational", "hazard-free", "registered"),
+                         help="hazard-free: add the consensus terms that remove static hazards "
+                              "of the outputs under single-input changes; registered: each "
+                              "output from its own flip-flop (Mealy outputs one clock later); "
+                              "default combinational")
+    command.add_argument("--unused", default="dont-care", choices=UNUSED_POLICIES,
+                         help="unused state codes: don't cares, or safe (go to reset)")
+    command.add_argument("--logic", default="heuristic", choices=LOGIC_METHODS,
+                         help="two-level minimizer: heuristic (Espresso), exact, or auto "
+                              "(exact up to 10 variables); default heuristic")
+    command.add_argument("--weights", help="cost weights TOML file (docs/guide/synthesis.md)")
+    command.add_argument("--clock-edge", default="rising", choices=("rising", "falling"),
+                         help="edge the flip-flops sample on (default rising)")
+    command.add_argument("--no-minimize", action="store_true",
+                         help="keep every state (skip state minimization)")
+
+
 def parser() -> argparse.ArgumentParser:
     parser = argparse.ArgumentParser(
         prog="fsmsynth",
@@ -109,45 +150,10 @@ def parser() -> argparse.ArgumentParser:
     build = sub.add_parser("build", help="synthesize, verify and write Verilog and JSON")
     build.add_argument("spec", help="state table: .toml spec or .csv table")
     table_settings(build)
-    target_options(build)
-    build.add_argument("--storage", default="d", type=str,
-                       help=f"flip-flop kind: {', '.join(sorted(STORAGES))}, best (cheapest per "
-                            "bit), or one kind per state bit, bit 0 first (jk,d); default d")
-    build.add_argument("--encoding", default="binary", type=str,
-                       help="binary, gray, one-hot, outputs (Moore), adjacency, exhaustive, "
-                            "anneal, or state=code,... (default binary)")
-    build.add_argument("--seed", type=int, default=0, help="seed of the anneal search (0)")
-    build.add_argument("--budget", type=int, help="steps of the anneal search (default 400)")
-    build.add_argument("--jobs", type=positive, default=1,
-                       help="worker processes for a searched encoding (default 1)")
-    build.add_argument("--time-limit", type=seconds, default=None,
-                       help="seconds for a searched encoding; then the best found so far")
-    build.add_argument("--force", action="store_true",
-                       help="run an exhaustive search however many assignments it has")
-    build.add_argument("--width", type=int,
-                       help="code width in bits for adjacency, exhaustive and anneal")
-    build.add_argument("--unit-distance", action="store_true",
-                       help="searched encodings: codes one bit apart across every transition "
-                            "where possible (no function hazards there)")
-    build.add_argument("--outputs", default="combinational",
-                       choices=("combinational", "hazard-free", "registered"),
-                       help="hazard-free: add the consensus terms that remove static hazards "
-                            "of the outputs under single-input changes; registered: each "
-                            "output from its own flip-flop (Mealy outputs one clock later); "
-                            "default combinational")
-    build.add_argument("--unused", default="dont-care", choices=UNUSED_POLICIES,
-                       help="unused state codes: don't cares, or safe (go to reset)")
-    build.add_argument("--logic", default="heuristic", choices=LOGIC_METHODS,
-                       help="two-level minimizer: heuristic (Espresso), exact, or auto "
-                            "(exact up to 10 variables); default heuristic")
-    build.add_argument("--weights", help="cost weights TOML file (docs/guide/synthesis.md)")
-    build.add_argument("--clock-edge", default="rising", choices=("rising", "falling"),
-                       help="edge the flip-flops sample on (default rising)")
+    design_options(build)
     build.add_argument("--check", action="store_true",
                        help="write nothing; exit 1 naming every output file that is missing "
                             "or differs from what the spec gives now")
-    build.add_argument("--no-minimize", action="store_true",
-                       help="keep every state (skip state minimization)")
     build.add_argument("-o", "--out", default="build", help="output folder (default build/)")
     build.add_argument("--testbench", action="store_true",
                        help="also write <name>_tb.v (and <name>_tb.vhd with --hdl vhdl), a "
@@ -177,11 +183,7 @@ def parser() -> argparse.ArgumentParser:
     tim = sub.add_parser("timing", help="clock period, hold check and critical path")
     tim.add_argument("spec", help="state table: .toml spec or .csv table")
     table_settings(tim)
-    target_options(tim)
-    tim.add_argument("--storage", default="d", type=str, help="as for build (default d)")
-    tim.add_argument("--encoding", default="binary", type=str, help="as for build")
-    tim.add_argument("--logic", default="heuristic", choices=LOGIC_METHODS)
-    tim.add_argument("--clock-edge", default="rising", choices=("rising", "falling"))
+    design_options(tim)
     tim.add_argument("--delays", help="delay model TOML file (see docs/guide/checks.md, Timing)")
     tim.add_argument("--json", action="store_true", help="print JSON")
     tim.add_argument("-q", "--quiet", action="store_true",

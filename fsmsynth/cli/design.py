@@ -24,12 +24,12 @@ from fsmsynth.flows.compare import compare
 from fsmsynth.flows.convert import convert_storage
 from fsmsynth.flows.design import Design
 from fsmsynth.flows.files import write_all_if_changed
-from fsmsynth.flows.pipeline import synthesize
 from fsmsynth.flows.project import (
     design_files,
     synthesize_with,
 )
 from fsmsynth.formats.delays_toml import read_delays
+from fsmsynth.map.targets import target_named
 
 
 def design_report(design: Design) -> dict[str, object]:
@@ -67,11 +67,14 @@ def design_report(design: Design) -> dict[str, object]:
     }
 
 
-def build_command(args: argparse.Namespace) -> int:
-    table = read_table_arg(args)
+def options_of(args: argparse.Namespace) -> BuildOptions:
+    """The build options of ``arguments.design_options`` (and, for ``build``, the files to
+    write): ``build`` and ``timing`` make the same design from the same options."""
     storage = storage_arg(args.storage)
     encoding = encoding_arg(args.encoding)
-    options = BuildOptions(
+    files = ({"hdl": tuple(args.hdl), "testbench": args.testbench, "cocotb": args.cocotb}
+             if args.command == "build" else {})
+    return BuildOptions(
         storage=tuple(storage) if isinstance(storage, list) else storage,
         encoding=FrozenMap(encoding) if isinstance(encoding, dict) else encoding,
         unused=args.unused, minimize=not args.no_minimize, logic=args.logic,
@@ -79,7 +82,12 @@ def build_command(args: argparse.Namespace) -> int:
         width=args.width, clock_edge=args.clock_edge, jobs=args.jobs,
         time_limit=args.time_limit, force=args.force, target=target_arg(args.target),
         map_for=args.map_for, outputs=args.outputs, unit_distance=args.unit_distance,
-        hdl=tuple(args.hdl), testbench=args.testbench, cocotb=args.cocotb)
+        **files)
+
+
+def build_command(args: argparse.Namespace) -> int:
+    table = read_table_arg(args)
+    options = options_of(args)
     design = synthesize_with(table, options)
     out = Path(args.out)
     files = {out / name: text for name, text in design_files(design, options).items()}
@@ -162,10 +170,12 @@ def build_command(args: argparse.Namespace) -> int:
 
 def timing_command(args: argparse.Namespace) -> int:
     table = read_table_arg(args)
-    design = synthesize(table, storage_arg(args.storage), encoding_arg(args.encoding),
-                        logic=args.logic, clock_edge=args.clock_edge,
-                        target=target_arg(args.target), map_for=args.map_for)
-    report = timing(design, read_delays(args.delays) if args.delays else None)
+    options = options_of(args)
+    design = synthesize_with(table, options)
+    target = target_named(options.target)
+    cells = {c.name for c in target.cells} | {f"LUT{k}" for k in range(1, target.lut_size + 1)}
+    delays = read_delays(args.delays, cells=cells) if args.delays else None
+    report = timing(design, delays)
     if args.json:
         def steps(path: tuple[object, ...]) -> list[dict[str, object]]:
             return [{"element": s.element, "kind": s.kind, "net": s.net,  # type: ignore[attr-defined]
@@ -184,7 +194,8 @@ def timing_command(args: argparse.Namespace) -> int:
         print(line)
     if not args.quiet:
         print("Delays are illustrative unless given with --delays: verify timing in the "
-              "target technology.")
+              "target technology." if delays is None else
+              f"Delays from {args.delays}: verify timing in the target technology.")
     return 0
 
 

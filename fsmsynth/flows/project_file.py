@@ -40,7 +40,7 @@ from fsmsynth.base.errors import FsmSynthError, SpecFileError
 from fsmsynth.base.frozen import FrozenMap
 from fsmsynth.flows.build_options import BuildOptions, Project, ProjectSpec, option_problem
 from fsmsynth.formats.cells_toml import read_cells
-from fsmsynth.formats.text_files import read_text
+from fsmsynth.formats.text_files import line_of, read_text
 from fsmsynth.formats.weights_toml import read_weights
 
 TOP_KEYS = ("out", "specs", "defaults", "spec", "sweep")
@@ -67,7 +67,7 @@ def read_project(path: str | Path) -> Project:
     lines = text.splitlines()
 
     def fail(message: str, section: str | None, key: str | None) -> SpecFileError:
-        return SpecFileError(message, path=str(p), line=_line_of(lines, section, key))
+        return SpecFileError(message, path=str(p), line=line_of(lines, section, key))
 
     for key in data:
         if key not in TOP_KEYS:
@@ -181,21 +181,3 @@ def _sweep(data: object, fail: Any) -> FrozenMap[str, tuple[str, ...]]:
             raise fail(f"[sweep] {key} must be a list of names", "sweep", key)
         lists[key] = tuple(value)
     return FrozenMap(lists)
-
-
-def _line_of(lines: list[str], section: str | None, key: str | None) -> int | None:
-    """The line (from 1) of ``key`` in table ``section`` (None: the top level), or of the
-    section's header when ``key`` is None; None when it cannot be found."""
-    current: str | None = None
-    for number, raw in enumerate(lines, 1):
-        line = raw.strip()
-        if line.startswith("["):
-            current = line.strip("[] ").replace('"', "").replace(" ", "")
-            if key is None and current == section:
-                return number
-            continue
-        if key is not None and current == section:
-            name = line.split("=", 1)[0].strip().strip('"')
-            if "=" in line and name == key:
-                return number
-    return None

@@ -36,3 +36,21 @@ def non_negative(value: object, where: str, path: str | Path) -> float:
         raise SpecFileError(f"{where} must be a finite number >= 0, not {value!r}",
                             path=str(path))
     return float(value)
+
+
+def line_of(lines: list[str], table: str | None, key: str | None) -> int | None:
+    """The line (from 1) of ``key`` in TOML table ``[table]`` (None: the top level), or of
+    the table's header when ``key`` is None; None when it cannot be found.  For error
+    messages: TOML parsers give no positions for the values they return."""
+    current: str | None = None
+    for number, raw in enumerate(lines, 1):
+        line = raw.split("#", 1)[0].strip()
+        if line.startswith("["):
+            current = line.strip("[] ").replace('"', "").replace(" ", "")
+            if key is None and current == table:
+                return number
+            continue
+        if key is not None and current == table and "=" in line \
+                and line.split("=", 1)[0].strip().strip('"') == key:
+            return number
+    return None
