@@ -7,14 +7,14 @@ from pathlib import Path
 
 sys.path.insert(0, str(Path(__file__).resolve().parent.parent))
 
-from fsmsynth.version import __version__  # noqa: E402
+from fsmsynth.version import __version__
 
 project = "fsmsynth"
 author = "the fsmsynth developers"
 release = version = __version__
 extensions = ["myst_parser", "sphinx.ext.autodoc", "sphinx.ext.napoleon"]
 source_suffix = {".md": "markdown"}
-exclude_patterns = ["_build"]
+exclude_patterns = ["_build", "figures"]  # included by the pages that show them
 myst_heading_anchors = 3
 napoleon_google_docstring = False
 napoleon_numpy_docstring = True

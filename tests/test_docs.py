@@ -6,6 +6,7 @@ from __future__ import annotations
 
 import doctest
 import importlib
+import importlib.util
 import re
 import shutil
 from pathlib import Path
@@ -90,3 +91,16 @@ def test_readme_is_a_front_door() -> None:
     assert "pytest" in first_fences[1][1]
     for link in re.findall(r"\]\(((?:docs/|DEVELOPERS)[^)#]*)", text):
         assert (ROOT / link).exists(), link
+
+
+def test_the_figures_the_docs_show_are_what_fsmsynth_computes_now() -> None:
+    """docs/figures.py computes every table of numbers the guide includes; the committed
+    files must be what it gives today (run it and commit when a change moves a figure)."""
+    spec = importlib.util.spec_from_file_location("docs_figures", ROOT / "docs" / "figures.py")
+    assert spec is not None and spec.loader is not None
+    figures = importlib.util.module_from_spec(spec)
+    spec.loader.exec_module(figures)
+    assert set(figures.FIGURES) == {p.stem for p in (ROOT / "docs" / "figures").glob("*.md")}
+    for name, make in figures.FIGURES.items():
+        assert (ROOT / "docs" / "figures" / f"{name}.md").read_text() == make(), name
+        assert any(f"figures/{name}.md" in page.read_text() for page in PAGES), name
