@@ -33,8 +33,9 @@ def test_check_reports_stale_files_after_the_spec_changes(
     assert "up to date" in capsys.readouterr().out
     assert main(["build", str(spec), "-o", str(out)]) == 0  # second run rewrites nothing
     assert {p.name: p.stat().st_mtime_ns for p in out.iterdir()} == stamps
-    spec.write_text(spec.read_text().replace('["warn",     "-0-", "warn",     "01"]',
-                                             '["warn",     "-0-", "warn",     "11"]'))
+    spec.write_text(spec.read_text().replace(
+        '{ from = "warn", cube = "-0-", to = "warn", set = { unlock = 0, buzzer = 1 } }',
+        '{ from = "warn", cube = "-0-", to = "warn", set = { unlock = 1, buzzer = 1 } }'))
     capsys.readouterr()
     assert main(["build", str(spec), "-o", str(out), "--check"]) == 1
     text = capsys.readouterr().out

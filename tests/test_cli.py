@@ -60,13 +60,14 @@ def test_check_reports(capsys: pytest.CaptureFixture[str]) -> None:
 
 def test_bad_spec_exits_nonzero_without_traceback(tmp_path: Path) -> None:
     spec = tmp_path / "bad.toml"
-    spec.write_text(Path(LOCKER).read_text().replace('"-01", "warn", ', '"-01", "wran", '))
+    spec.write_text(Path(LOCKER).read_text().replace('cube = "-01", to = "warn"',
+                                                     'cube = "-01", to = "wran"'))
     run = subprocess.run([sys.executable, "-m", "fsmsynth.cli", "build", str(spec), "-o",
                           str(tmp_path)], capture_output=True, text=True)
     assert run.returncode == 2
     assert "Traceback" not in run.stderr
-    assert run.stderr == (f"fsmsynth: error: {spec}:22: row 8 (state 'open'): next state "
-                          "'wran' is unknown; give it rows of its own or declare it in states\n")
+    assert run.stderr == (f"fsmsynth: error: {spec}:24: transition 8: to state 'wran' is not "
+                          "declared in states (locked, unlocked, open, warn)\n")
 
 
 def test_unknown_encoding_is_a_clear_error(capsys: pytest.CaptureFixture[str]) -> None:

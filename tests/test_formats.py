@@ -33,14 +33,38 @@ rows = [
 """
 
 
-def error_of(text: str) -> str:
+def error_of(text: str, legacy: bool = True) -> str:
+    """The error reading ``text`` gives; the cube-row spec above is the older form, read
+    with ``legacy`` (as ``fsmsynth rewrite`` reads it)."""
     with pytest.raises(SpecFileError) as info:
-        parse_spec(text, "lamp.toml")
+        parse_spec(text, "lamp.toml", legacy=legacy)
     return str(info.value)
 
 
+def test_cube_rows_are_refused_naming_the_command_that_rewrites_them() -> None:
+    assert error_of(GOOD, legacy=False) == (
+        "lamp.toml:8: cube rows ('rows') are an older form: `fsmsynth rewrite lamp.toml -o "
+        "NEW.toml` writes the same machine as [[transition]] entries, row for row")
+
+
+def test_a_star_transition_is_refused_naming_every_state_entries() -> None:
+    text = ('name = "m"\ninputs = ["a"]\noutputs = []\nreset = "s"\n\n[[transition]]\n'
+            'from = "*"\nwhen = "a"\nto = "s"\n')
+    assert error_of(text, legacy=False) == (
+        "lamp.toml:6: transition 1: from = \"*\" is an older form: write what every state does "
+        "as [[every_state]] entries (no 'from'), or run `fsmsynth rewrite lamp.toml -o "
+        "NEW.toml`")
+
+
+def test_rewrite_gives_the_same_table_in_todays_form() -> None:
+    from fsmsynth.flows.rewrite import rewrite_spec
+    new = rewrite_spec(GOOD, "lamp.toml")
+    assert "rows" not in new and 'cube = "-0", to = "-"' in new
+    assert parse_spec(new) == parse_spec(GOOD, legacy=True)
+
+
 def test_reads_rows_and_dont_care_next_state() -> None:
-    t = parse_spec(GOOD)
+    t = parse_spec(GOOD, legacy=True)
     assert t.rows[3] == ("lit", "-0", None, "1")
     assert t.states == ("idle", "lit")
 
@@ -72,8 +96,8 @@ def test_toml_syntax_error_reports_its_line() -> None:
 def test_unknown_key() -> None:
     text = GOOD.replace('kind = "mealy"', 'knd = "mealy"')
     assert error_of(text) == ("lamp.toml:3: unknown key 'knd': the keys are name, kind, inputs, "
-                              "outputs, reset, states, rows, state_outputs, transition, "
-                              "default_outputs, otherwise, invariants")
+                              "outputs, reset, states, state_outputs, transition, "
+                              "every_state, default_outputs, otherwise, invariants")
 
 
 def test_guarded_form_keys_are_refused_beside_cube_rows() -> None:
@@ -149,7 +173,8 @@ def test_examples_read(path: Path) -> None:
 @given(state_tables(max_states=6))
 def test_round_trip(table: object) -> None:
     """Writing a table and reading it back gives an equal table."""
-    assert parse_spec(write_spec(table)) == table  # type: ignore[arg-type]
+    text = write_spec(table)  # type: ignore[arg-type]
+    assert "rows" not in text and parse_spec(text) == table
 
 
 def test_rows_must_be_an_array() -> None:
@@ -262,3 +287,23 @@ def test_guarded_writing_keeps_vectors_and_invariants() -> None:
            "moisture = 3, grain_cool = 1 }" in text
     assert '"~(burner & ~fan)",' in text and "auger = 3" in text
     assert parse_spec(text).invariants == table.invariants
+
+
+def test_the_rewrite_command_turns_older_files_into_the_same_machines(
+        tmp_path: Path, capsys: pytest.CaptureFixture[str]) -> None:
+    """Cube rows become exact entries (the same table, row for row); from = "*" entries
+    become [[every_state]] entries, the rest kept as given."""
+    from fsmsynth.cli import main
+    star = ('name = "hoist"\ninputs = ["up", "stop"]\noutputs = ["motor"]\nreset = "rest"\n'
+            'default_outputs = { motor = 0 }\notherwise = "stay"\n\n'
+            '[[transition]]\nfrom = "*"\nwhen = "stop"\nto = "rest"\n\n'
+            '[[transition]]\nfrom = "rest"\nwhen = "up"\nto = "lift"\nset = { motor = 1 }\n')
+    for name, text in (("rows.toml", GOOD), ("star.toml", star)):
+        old, new = tmp_path / name, tmp_path / f"new_{name}"
+        old.write_text(text)
+        assert main(["build", str(old), "-o", str(tmp_path / "out")]) == 2
+        assert f"fsmsynth rewrite {old} -o NEW.toml" in capsys.readouterr().err
+        assert main(["rewrite", str(old), "-o", str(new)]) == 0
+        assert capsys.readouterr().out == f"wrote {new}\n"
+        assert parse_spec(new.read_text()) == parse_spec(text, legacy=True)
+    assert '[[every_state]]\nwhen = "stop"\nto = "rest"' in (tmp_path / "new_star.toml").read_text()

@@ -282,15 +282,15 @@ kind = "moore"
 inputs = ["a", "b", "c", "d", "e", "f", "g"]
 outputs = ["y"]
 reset = "s"
-rows = [
-  ["s", "1111111", "t"],
-  ["s", "0------", "s"],
-  ["t", "-------", "s"],
+transition = [
+  { from = "s", cube = "1111111", to = "t" },
+  { from = "s", cube = "0------", to = "s" },
+  { from = "t", cube = "-------", to = "s" },
 ]
 
 [state_outputs]
-s = "0"
-t = "1"
+s = { y = 0 }
+t = { y = 1 }
 """
 
 

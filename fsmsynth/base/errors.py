@@ -23,6 +23,9 @@ class TableError(FsmSynthError, ValueError):
         Index (0-based) of the row at fault in the rows given, when there is one.
     name:
         The input, output or machine name at fault, when there is one.
+    entry:
+        For guarded transitions, the list ``row`` indexes: ``"transition"`` or
+        ``"every_state"``.
     """
 
     def __init__(
@@ -32,12 +35,14 @@ class TableError(FsmSynthError, ValueError):
         state: str | None = None,
         row: int | None = None,
         name: str | None = None,
+        entry: str | None = None,
     ) -> None:
         super().__init__(message)
         self.message = message
         self.state = state
         self.row = row
         self.name = name
+        self.entry = entry
 
 
 class SpecFileError(TableError):

@@ -16,7 +16,13 @@ from fsmsynth.base.errors import FsmSynthError, VerificationError
 from fsmsynth.cli.arguments import parser
 from fsmsynth.cli.design import build_command, compare_command, convert_command, timing_command
 from fsmsynth.cli.many import build_all_command, sweep_command
-from fsmsynth.cli.table import check_command, diagram_command, kmap_command, reduce_command
+from fsmsynth.cli.table import (
+    check_command,
+    diagram_command,
+    kmap_command,
+    reduce_command,
+    rewrite_command,
+)
 
 
 def main(argv: Sequence[str] | None = None) -> int:
@@ -29,7 +35,8 @@ def main(argv: Sequence[str] | None = None) -> int:
                     "compare": compare_command, "timing": timing_command,
                     "diagram": diagram_command, "kmap": kmap_command,
                     "convert": convert_command, "check": check_command,
-                    "build-all": build_all_command, "sweep": sweep_command}
+                    "build-all": build_all_command, "sweep": sweep_command,
+                    "rewrite": rewrite_command}
         return commands[args.command](args)
     except FsmSynthError as exc:
         print(f"fsmsynth: error: {exc}", file=sys.stderr)

@@ -222,6 +222,15 @@ def parser() -> argparse.ArgumentParser:
     fmt.add_argument("--json", action="store_true", help="print JSON")
     fmt.add_argument("--csv", action="store_true", help="print CSV")
 
+    rew = sub.add_parser("rewrite", help="write an older spec file (cube rows, from = \"*\") "
+                                         "in today's form, the same machine")
+    rew.add_argument("spec", help="the older .toml spec")
+    rew.add_argument("-o", "--out", help="write it here (default: print it); may be the spec "
+                                         "itself")
+    rew.add_argument("--guards", action="store_true",
+                     help="cube rows: write guards where they say the same machine (default: "
+                          "one exact entry per row)")
+
     conv = sub.add_parser("convert", help="logic that makes one flip-flop kind act as another")
     conv.add_argument("target", help=f"kind to build: {', '.join(sorted(STORAGES))}")
     conv.add_argument("--using", required=True, help="kind of cell available")

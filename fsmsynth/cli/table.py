@@ -16,6 +16,8 @@ from fsmsynth.cli.arguments import encoding_arg, read_table_arg, storage_arg
 from fsmsynth.cli.printing import minimization_lines
 from fsmsynth.flows.files import write_bytes_if_changed, write_if_changed
 from fsmsynth.flows.pipeline import synthesize
+from fsmsynth.flows.rewrite import rewrite_spec
+from fsmsynth.formats.text_files import read_text
 from fsmsynth.stages.reduce import minimize_states
 from fsmsynth.writers.dot import render, suffix_format, write_netlist_dot, write_state_diagram
 from fsmsynth.writers.kmap import MAX_VARIABLES, support, write_karnaugh
@@ -135,3 +137,13 @@ def check_command(args: argparse.Namespace) -> int:
     if table.invariants:
         print(f"  {kept.summary()}")
     return status
+
+
+def rewrite_command(args: argparse.Namespace) -> int:
+    text = rewrite_spec(read_text(args.spec), args.spec, guards=args.guards)
+    if not args.out:
+        print(text, end="")
+        return 0
+    changed = write_if_changed(args.out, text)
+    print(f"{'wrote' if changed else 'unchanged'} {args.out}")
+    return 0

@@ -13,29 +13,40 @@ from typing import Any
 
 from fsmsynth.base.errors import SpecFileError, TableError
 from fsmsynth.formats.text_files import read_text
+from fsmsynth.language.transitions import ExactCube
 from fsmsynth.model.table import StateTable
 
-KEYS = ("name", "kind", "inputs", "outputs", "reset", "states", "rows", "state_outputs",
-        "transition", "default_outputs", "otherwise", "invariants")
-TRANSITION_KEYS = ("from", "when", "to", "set")
-"""Fields of one ``[[transition]]`` entry: present state, guard, next state, outputs set."""
+KEYS = ("name", "kind", "inputs", "outputs", "reset", "states", "state_outputs",
+        "transition", "every_state", "default_outputs", "otherwise", "invariants")
+TRANSITION_KEYS = ("from", "when", "cube", "to", "set")
+"""Fields of one ``[[transition]]`` entry: present state, a guard (``when``) or an exact
+input cube (``cube``), next state (``"-"``: don't care), outputs set."""
+EVERY_STATE_KEYS = ("when", "to", "set")
+"""Fields of one ``[[every_state]]`` entry, which every state tries before its own."""
 _POSITION = re.compile(r"\(at line (\d+), column \d+\)")
 _INVARIANT = re.compile(r"invariant (\d+) \(")
+REWRITE = "fsmsynth rewrite"
+"""The command that writes an older spec file in today's form."""
 
 
-def read_spec(path: str | Path) -> StateTable:
+def read_spec(path: str | Path, *, legacy: bool = False) -> StateTable:
     """Read a state table from a ``.toml`` spec file.
+
+    ``legacy`` also reads the older forms (``rows = [...]`` of cube rows, ``from = "*"``),
+    which ``fsmsynth rewrite`` turns into today's; otherwise they are refused with a message
+    that names that command.
 
     Raises
     ------
     SpecFileError
         With ``file:line:`` first in the message.
     """
-    return parse_spec(read_text(path), str(path))
+    return parse_spec(read_text(path), str(path), legacy=legacy)
 
 
-def parse_spec(text: str, path: str = "<string>") -> StateTable:
-    """Parse spec text; ``path`` is used in error messages."""
+def parse_spec(text: str, path: str = "<string>", *, legacy: bool = False) -> StateTable:
+    """Parse spec text; ``path`` is used in error messages (``legacy`` as for
+    :func:`read_spec`)."""
     try:
         data = tomllib.loads(text)
     except tomllib.TOMLDecodeError as exc:
@@ -44,28 +55,39 @@ def parse_spec(text: str, path: str = "<string>") -> StateTable:
         raise SpecFileError(f"not valid TOML: {message}", path=path,
                             line=int(match.group(1)) if match else None) from None
     lines = _Lines(text)
+    if "rows" in data and not legacy:
+        raise SpecFileError(f"cube rows ('rows') are an older form: `{REWRITE} {path} -o NEW.toml` "
+                            "writes the same machine as [[transition]] entries, row for row",
+                            path=path, line=lines.key("rows"))
     for key in data:
-        if key not in KEYS:
+        if key not in KEYS and not (legacy and key == "rows"):
             raise SpecFileError(f"unknown key {key!r}: the keys are {', '.join(KEYS)}",
                                 path=path, line=lines.key(key))
-    guarded = "transition" in data
-    if guarded and "rows" in data:
-        raise SpecFileError("give either 'rows' (cubes) or [[transition]] entries (guards), "
-                            "not both", path=path, line=lines.key("rows"))
-    for key in () if guarded else ("default_outputs", "otherwise"):
-        if key in data:
-            raise SpecFileError(f"{key!r} belongs to the [[transition]] form; cube rows say "
-                                "it row by row", path=path,
-                                line=lines.key(key))
-    for key in ("name", "inputs", "outputs", "reset") + (() if guarded else ("rows",)):
+    for key in ("name", "inputs", "outputs", "reset"):
         if key not in data:
             raise SpecFileError(f"missing key {key!r}", path=path)
+    if "rows" in data and ("transition" in data or "every_state" in data):
+        raise SpecFileError("give either 'rows' or [[transition]] entries, not both",
+                            path=path, line=lines.key("rows"))
+    if "rows" not in data and "transition" not in data:
+        raise SpecFileError("missing [[transition]] entries: from a state, when a guard "
+                            "holds, to the next state", path=path)
     for key in ("name", "kind", "reset", "otherwise"):
         _expect(data, key, str, path, lines)
-    _expect_strings(data, "invariants", path, lines)
-    if guarded:
-        return _guarded(data, path, lines)
-    for key in ("inputs", "outputs", "states"):
+    for key in ("invariants", "states"):
+        _expect_strings(data, key, path, lines)
+    if "rows" in data:
+        return _cube_rows(data, path, lines)
+    return _guarded(data, path, lines, legacy)
+
+
+def _cube_rows(data: dict[str, Any], path: str, lines: _Lines) -> StateTable:
+    """The older cube-row form, read only to be rewritten."""
+    for key in ("default_outputs", "otherwise"):
+        if key in data:
+            raise SpecFileError(f"{key!r} belongs to the [[transition]] form; cube rows say "
+                                "it row by row", path=path, line=lines.key(key))
+    for key in ("inputs", "outputs"):
         _expect_strings(data, key, path, lines)
     if not isinstance(data["rows"], list):
         raise SpecFileError("'rows' must be an array of rows", path=path, line=lines.key("rows"))
@@ -96,43 +118,69 @@ def parse_spec(text: str, path: str = "<string>") -> StateTable:
                             row=exc.row, name=exc.name) from None
 
 
-def _guarded(data: dict[str, Any], path: str, lines: _Lines) -> StateTable:
-    """The guarded form: ``[[transition]]`` entries with named fields (the keys both forms
-    share are checked by :func:`parse_spec`)."""
-    entries = data["transition"]
+def _entries(data: dict[str, Any], key: str, fields: tuple[str, ...], path: str,
+             lines: _Lines) -> list[dict[str, Any]]:
+    """The ``[[key]]`` entries, each checked for unknown fields and field types."""
+    entries = data.get(key, [])
     if not isinstance(entries, list) or not all(isinstance(e, dict) for e in entries):
-        raise SpecFileError("write transitions as [[transition]] tables", path=path,
-                            line=lines.key("transition"))
-    transitions: list[tuple[str, str, str, dict[str, Any] | None]] = []
+        raise SpecFileError(f"write them as [[{key}]] tables", path=path, line=lines.key(key))
+    name = "every-state transition" if key == "every_state" else "transition"
     for i, entry in enumerate(entries):
-        where = lines.entry("transition", i)
-        for key in entry:
-            if key not in TRANSITION_KEYS:
-                raise SpecFileError(f"transition {i + 1}: unknown field {key!r}: the fields "
-                                    f"are {', '.join(TRANSITION_KEYS)}", path=path,
-                                    line=where, row=i)
-        for key in ("from", "when", "to"):
-            if not isinstance(entry.get(key), str):
-                raise SpecFileError(f"transition {i + 1}: field {key!r} must be a string",
+        where = lines.entry(key, i)
+        for field in entry:
+            if field not in fields:
+                raise SpecFileError(f"{name} {i + 1}: unknown field {field!r}: the fields are "
+                                    f"{', '.join(fields)}", path=path, line=where, row=i)
+        guard = [f for f in ("when", "cube") if f in entry and f in fields]
+        if len(guard) != 1:
+            raise SpecFileError(f"{name} {i + 1}: give " + ("'when' (a guard) or 'cube' (an "
+                                "exact input cube)" if "cube" in fields else "'when' (a guard)"),
+                                path=path, line=where, row=i)
+        for field in ("from", *guard, "to"):
+            if field in fields and not isinstance(entry.get(field), str):
+                raise SpecFileError(f"{name} {i + 1}: field {field!r} must be a string",
                                     path=path, line=where, row=i)
-        given = entry.get("set")
-        if given is not None and not isinstance(given, dict):
-            raise SpecFileError(f"transition {i + 1}: 'set' must be a table of output = "
-                                "value", path=path, line=where, row=i)
-        if data.get("kind", "mealy") == "moore" and given is None:
-            transitions.append((entry["from"], entry["when"], entry["to"], None))
+        if "set" in entry and not isinstance(entry["set"], dict):
+            raise SpecFileError(f"{name} {i + 1}: 'set' must be a table of output = value",
+                                path=path, line=where, row=i)
+    return entries
+
+
+def _guarded(data: dict[str, Any], path: str, lines: _Lines, legacy: bool) -> StateTable:
+    """``[[transition]]`` and ``[[every_state]]`` entries (the keys every spec has are
+    checked by :func:`parse_spec`)."""
+    moore = data.get("kind", "mealy") == "moore"
+
+    def outputs(entry: dict[str, Any]) -> dict[str, Any] | None:
+        return None if moore and "set" not in entry else entry.get("set") or {}
+
+    transitions: list[tuple[Any, ...]] = []
+    every: list[tuple[Any, ...]] = []
+    for i, entry in enumerate(_entries(data, "transition", TRANSITION_KEYS, path, lines)):
+        guard = ExactCube(entry["cube"]) if "cube" in entry else entry["when"]
+        if entry["from"] == "*" and legacy:
+            every.append((guard, entry["to"], outputs(entry)))
+        elif entry["from"] == "*":
+            raise SpecFileError(f"transition {i + 1}: from = \"*\" is an older form: write "
+                                "what every state does as [[every_state]] entries (no 'from'), "
+                                f"or run `{REWRITE} {path} -o NEW.toml`", path=path,
+                                line=lines.entry("transition", i), row=i)
         else:
-            transitions.append((entry["from"], entry["when"], entry["to"], given or {}))
+            transitions.append((entry["from"], guard, entry["to"], outputs(entry)))
+    every += [(entry["when"], entry["to"], outputs(entry))
+              for entry in _entries(data, "every_state", EVERY_STATE_KEYS, path, lines)]
     try:
         return StateTable.from_transitions(
             name=data["name"], kind=data.get("kind", "mealy"), reset=data["reset"],
             inputs=data["inputs"], outputs=data["outputs"], transitions=transitions,
+            every_state=every, states=data.get("states"),
             default_outputs=data.get("default_outputs"),
             otherwise=data.get("otherwise", "dont-care"),
             state_outputs=data.get("state_outputs"), invariants=data.get("invariants"))
     except TableError as exc:
-        line = lines.entry("transition", exc.row) if exc.row is not None else \
-            lines.locate(exc, data)
+        # The compiler's errors name an entry; the table's own checks name compiled rows.
+        line = (lines.entry(exc.entry, exc.row) if exc.entry and exc.row is not None
+                else lines.locate(exc, data))
         raise SpecFileError(exc.message, path=path, line=line, state=exc.state, row=exc.row,
                             name=exc.name) from None
 

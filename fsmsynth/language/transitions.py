@@ -1,10 +1,12 @@
 """Guarded transitions compiled to the rows of a state table.
 
-Each state's transitions are tried in the order written, after the transitions whose present
-state is ``"*"`` (which apply to every state); the first whose guard holds fires, like an
-if/elif chain.  So transition *k* of a state covers exactly ``guard_k & ~(guard_1 | ... |
-guard_{k-1})``; that set is a BDD, and its disjoint cubes become the table's rows.  ``else``
-stands for "none of the earlier guards holds".  What no guard covers is unspecified
+Each state's transitions are tried in the order written, after the every-state transitions
+(which apply to every state); the first whose guard holds fires, like an if/elif chain.  So
+transition *k* of a state covers exactly ``guard_k & ~(guard_1 | ... | guard_{k-1})``; that
+set is a BDD, and its disjoint cubes become the table's rows.  ``else`` stands for "none of
+the earlier guards holds".  An :class:`ExactCube` in place of a guard is a row as it stands,
+outside the chain (rows of one state may then overlap where they agree); a next state of
+``None`` (``"-"`` in a spec file) is a don't care.  What nothing covers is unspecified
 (``otherwise="dont-care"``) or a self-loop with the default outputs (``otherwise="stay"``).
 """
 
@@ -18,6 +20,7 @@ from fsmsynth.base.errors import TableError
 from fsmsynth.base.names import port_bits
 from fsmsynth.language.guards import GuardError, compile_guard
 from fsmsynth.logic import bdd
+from fsmsynth.logic.cube import Cube
 
 ANY_STATE = "*"
 OTHERWISE = ("dont-care", "stay")
@@ -93,14 +96,26 @@ class CompiledTransitions:
     state_outputs: dict[str, str] | None
 
 
+@dataclass(frozen=True, slots=True)
+class ExactCube:
+    """An input cube given exactly (one ``0``/``1``/``-`` per input bit, vector bits most
+    significant first) in place of a guard: the transition is that row of the table."""
+
+    text: str
+
+
 def compile_transitions(*, kind: str, inputs: object, outputs: object,
                         transitions: Sequence[Sequence[object]],
                         default_outputs: Mapping[str, object] | None = None,
                         otherwise: str = "dont-care",
                         state_outputs: Mapping[str, Mapping[str, object]] | None = None,
-                        ) -> CompiledTransitions:
+                        every_state: Sequence[Sequence[object]] = (),
+                        states: Sequence[str] | None = None) -> CompiledTransitions:
     """The rows of guarded transitions (see the module docstring and
-    :meth:`fsmsynth.model.table.StateTable.from_transitions`, which builds the table)."""
+    :meth:`fsmsynth.model.table.StateTable.from_transitions`, which builds the table).
+
+    Errors are :class:`~fsmsynth.base.errors.TableError` with ``row`` the entry's index and
+    ``entry`` the list it is in (``"transition"`` or ``"every_state"``)."""
     if otherwise not in OTHERWISE:
         raise TableError(f"otherwise {otherwise!r}: use 'dont-care' or 'stay'")
     in_widths = _widths("inputs", inputs)
@@ -109,9 +124,9 @@ def compile_transitions(*, kind: str, inputs: object, outputs: object,
     for port in defaults:
         if port not in out_widths:
             raise TableError(f"default_outputs: unknown output {port!r}", name=str(port))
-    if isinstance(transitions, (str, bytes)) or not isinstance(transitions, Sequence):
-        raise TableError(f"transitions must be a list of (from, guard, to, outputs), not "
-                         f"{transitions!r}")
+    for what, entries in (("transitions", transitions), ("every_state", every_state)):
+        if isinstance(entries, (str, bytes)) or not isinstance(entries, Sequence):
+            raise TableError(f"{what} must be a list of entries, not {entries!r}")
     in_bits = _bits(in_widths)
     names = [bit for port_names in in_bits.values() for bit in port_names]
     var = bdd.variables(len(names))
@@ -119,73 +134,38 @@ def compile_transitions(*, kind: str, inputs: object, outputs: object,
     # The guard compiler takes each port's variables least significant first.
     bits = {port: [var[index[b]] for b in reversed(port_names)]
             for port, port_names in in_bits.items()}
-    parsed: list[tuple[int, str, str, Any, str, str | None]] = []
-    states: list[str] = []
-    for pos, entry in enumerate(transitions, start=1):
-        if isinstance(entry, (str, bytes)) or not isinstance(entry, Sequence) \
-                or len(entry) not in (3, 4):
-            raise TableError(f"transition {pos}: give (from, guard, to, outputs), not "
-                             f"{entry!r}", row=pos - 1)
-        frm, guard, to = entry[0], entry[1], entry[2]
-        given = entry[3] if len(entry) == 4 else None
-        for what, value in (("from", frm), ("to", to)):
-            if not isinstance(value, str) or not value:
-                raise TableError(f"transition {pos}: {what} state must be a name, not "
-                                 f"{value!r}", row=pos - 1)
-        assert isinstance(frm, str) and isinstance(to, str)
-        if not isinstance(guard, str):
-            raise TableError(f"transition {pos} (state {frm!r}): guard must be text, not "
-                             f"{guard!r}", state=frm, row=pos - 1)
-        where = f"transition {pos} ({frm} -> {to}, guard {guard!r})"
-        if guard.strip() == "else":
-            points = None
-        else:
-            try:
-                points = compile_guard(guard, in_widths, bits)
-            except GuardError as error:
-                raise TableError(f"{where}: {error.message}", state=frm,
-                                 row=pos - 1) from None
-        if kind == "moore":
-            if given is not None:
-                raise TableError(f"{where}: a Moore machine's outputs belong to its states "
-                                 "(state_outputs); give None here", state=frm, row=pos - 1)
-            word = None
-        else:
-            try:
-                word = _output_word(out_widths, defaults, given, where)
-            except TableError as exc:  # located at the transition, for the spec file's line
-                raise TableError(exc.message, state=frm, row=pos - 1, name=exc.name) from None
-        parsed.append((pos, frm, guard, points, to, word))
-    # Declaration order (it fixes binary and Gray codes): present states as first written,
-    # then states that only appear as next states.
-    for state in [p[1] for p in parsed] + [p[4] for p in parsed]:
-        if state != ANY_STATE and state not in states:
-            states.append(state)
-    if ANY_STATE in (p[4] for p in parsed):
-        raise TableError("a transition goes to '*': name its next state")
+    context = _Context(kind, in_widths, out_widths, defaults, bits, var, len(names))
+    every = [context.parse(k, ANY_STATE, *_fields(entry, k, "every_state", 3))
+             for k, entry in enumerate(every_state, start=1)]
+    parsed = [context.parse(pos, *_fields(entry, pos, "transition", 4))
+              for pos, entry in enumerate(transitions, start=1)]
+    declared = _declared(parsed, every, states)
     rows: list[tuple[str, str, str | None, str | None]] = []
     stay_word = None if kind == "moore" else _output_word(out_widths, defaults, {},
                                                           "default outputs")
-    every = {p[0] for p in parsed if p[1] == ANY_STATE}
-    for state in states:
-        chain = [p for p in parsed if p[1] == ANY_STATE] + [p for p in parsed if p[1] == state]
+    for state in declared:
+        chain = every + [p for p in parsed if p.state == state and not p.exact]
         covered = bdd.ZERO
-        earlier: list[tuple[int, Any]] = []
-        for pos, _frm, guard, points, to, word in chain:
-            wanted = ~covered if points is None else points
+        earlier: list[tuple[_Entry, Any]] = []
+        for entry in chain:
+            wanted = ~covered if entry.points is None else entry.points
             fires = wanted & ~covered
             if fires.is_zero():
-                blockers = [f"{p} (for every state)" if p in every else str(p)
-                            for p, g in earlier if points is None or not (g & wanted).is_zero()]
-                reason = (f"earlier guards of state {state!r} cover it (transition"
-                          f"{'s' if len(blockers) > 1 else ''} {', '.join(blockers)})"
-                          if blockers else "its guard never holds")
-                raise TableError(f"transition {pos} ({state} -> {to}, guard {guard!r}) can "
-                                 f"never fire: {reason}", state=state, row=pos - 1)
+                blockers = [e.name for e, g in earlier
+                            if entry.points is None or not (g & wanted).is_zero()]
+                reason = (f"earlier guards of state {state!r} cover it "
+                          f"({', '.join(blockers)})" if blockers else "its guard never holds")
+                raise TableError(f"{entry.name} ({state} -> {entry.to or '-'}, guard "
+                                 f"{entry.guard!r}) can never fire: {reason}", state=state,
+                                 row=entry.pos - 1, entry=entry.entry)
             for cube in bdd.cubes_of(fires, var):
-                rows.append((state, cube.to_string(len(names)), to, word))
-            earlier.append((pos, wanted))
+                rows.append((state, cube.to_string(len(names)), entry.to, entry.word))
+            earlier.append((entry, wanted))
             covered |= wanted
+        for entry in parsed:
+            if entry.state == state and entry.exact:
+                rows.append((state, entry.guard, entry.to, entry.word))
+                covered |= entry.points
         rest = ~covered
         if otherwise == "stay" and not rest.is_zero():
             for cube in bdd.cubes_of(rest, var):
@@ -194,11 +174,11 @@ def compile_transitions(*, kind: str, inputs: object, outputs: object,
     if kind == "moore":
         moore_words = {}
         for state, given in (state_outputs or {}).items():
-            if state not in states:
+            if state not in declared:
                 raise TableError(f"state_outputs: unknown state {state!r}", state=str(state))
             moore_words[state] = _output_word(out_widths, defaults, given,
                                               f"state_outputs of {state!r}")
-        for state in states:
+        for state in declared:
             moore_words.setdefault(state, _output_word(out_widths, defaults, {},
                                                        f"state_outputs of {state!r}"))
     elif state_outputs:
@@ -206,5 +186,122 @@ def compile_transitions(*, kind: str, inputs: object, outputs: object,
                          "on its transitions")
     out_names = [b for port_names in _bits(out_widths).values() for b in port_names]
     return CompiledTransitions(inputs=tuple(names), outputs=tuple(out_names),
-                               states=tuple(states), rows=tuple(rows),
+                               states=tuple(declared), rows=tuple(rows),
                                state_outputs=moore_words)
+
+
+@dataclass(frozen=True, slots=True)
+class _Entry:
+    """One parsed transition: where it came from, its points (``None`` for ``else``) and
+    what it sets."""
+
+    pos: int
+    entry: str
+    state: str
+    guard: str
+    points: Any
+    exact: bool
+    to: str | None
+    word: str | None
+
+    @property
+    def name(self) -> str:
+        return (f"every-state transition {self.pos}" if self.entry == "every_state"
+                else f"transition {self.pos}")
+
+
+def _fields(entry: object, pos: int, what: str, size: int) -> tuple[object, ...]:
+    """``(from, guard, to, outputs)`` of a transition, ``(guard, to, outputs)`` of an
+    every-state one (outputs optional)."""
+    shape = "(from, guard, to, outputs)" if size == 4 else "(guard, to, outputs)"
+    name = "every-state transition" if what == "every_state" else "transition"
+    if isinstance(entry, (str, bytes)) or not isinstance(entry, Sequence) \
+            or len(entry) not in (size - 1, size):
+        raise TableError(f"{name} {pos}: give {shape}, not {entry!r}", row=pos - 1, entry=what)
+    values = tuple(entry) + (() if len(entry) == size else (None,))
+    if size == 4 and values[0] == ANY_STATE:
+        raise TableError(f"transition {pos}: {ANY_STATE!r} is not a state; give what every "
+                         "state does as every-state transitions (every_state=[(guard, to, "
+                         "outputs)], in a spec file [[every_state]] entries)",
+                         row=pos - 1, entry=what)
+    return values
+
+
+@dataclass(frozen=True, slots=True)
+class _Context:
+    """What parsing one entry needs: the machine's kind, ports and BDD variables."""
+
+    kind: str
+    in_widths: dict[str, int]
+    out_widths: dict[str, int]
+    defaults: dict[str, object]
+    bits: dict[str, list[Any]]
+    var: list[Any]
+    n_inputs: int
+
+    def parse(self, pos: int, frm: object, guard: object, to: object,
+              given: object) -> _Entry:
+        what = "every_state" if frm == ANY_STATE else "transition"
+        name = "every-state transition" if frm == ANY_STATE else "transition"
+        if not isinstance(frm, str) or not frm:
+            raise TableError(f"{name} {pos}: from state must be a name, not {frm!r}",
+                             row=pos - 1, entry=what)
+        if to is not None and (not isinstance(to, str) or not to):
+            raise TableError(f"{name} {pos}: to state must be a name (or None for a don't "
+                             f"care), not {to!r}", row=pos - 1, entry=what)
+        nxt = None if to in (None, "-") else str(to)
+        state = None if frm == ANY_STATE else frm
+        exact = isinstance(guard, ExactCube)
+        text = guard.text if isinstance(guard, ExactCube) else guard
+        if not isinstance(text, str):
+            raise TableError(f"{name} {pos}" + (f" (state {frm!r})" if state else "")
+                             + f": guard must be text, not {guard!r}", state=state,
+                             row=pos - 1, entry=what)
+        where = (f"{name} {pos} ({frm} -> {nxt or '-'}, "
+                 f"{'cube' if exact else 'guard'} {text!r})")
+        if exact:
+            if len(text) != self.n_inputs or set(text) - set("01-"):
+                raise TableError(f"{where}: write the cube with one 0, 1 or - per input bit "
+                                 f"({self.n_inputs})", state=state, row=pos - 1, entry=what)
+            points = bdd.cube_bdd(Cube.from_string(text), self.var)
+        elif text.strip() == "else":
+            points = None
+        else:
+            try:
+                points = compile_guard(text, self.in_widths, self.bits)
+            except GuardError as error:
+                raise TableError(f"{where}: {error.message}", state=state, row=pos - 1,
+                                 entry=what) from None
+        if self.kind == "moore":
+            if given is not None:
+                raise TableError(f"{where}: a Moore machine's outputs belong to its states "
+                                 "(state_outputs); give None here", state=state, row=pos - 1,
+                                 entry=what)
+            word = None
+        else:
+            try:
+                word = _output_word(self.out_widths, self.defaults, given, where)
+            except TableError as exc:  # located at the entry, for the spec file's line
+                raise TableError(exc.message, state=state, row=pos - 1, name=exc.name,
+                                 entry=what) from None
+        return _Entry(pos=pos, entry=what, state=frm, guard=text, points=points, exact=exact,
+                      to=nxt, word=word)
+
+
+def _declared(parsed: Sequence[_Entry], every: Sequence[_Entry],
+              states: Sequence[str] | None) -> list[str]:
+    """Declaration order (it fixes binary and Gray codes): ``states`` when given, every
+    state named in a transition being one of them; else present states as first written,
+    then states that only appear as next states."""
+    named = [e.state for e in parsed] + [e.to for e in [*every, *parsed] if e.to is not None]
+    if states is None:
+        return list(dict.fromkeys(named))
+    if isinstance(states, (str, bytes)) or not all(isinstance(s, str) for s in states):
+        raise TableError(f"states must be a list of names, not {states!r}")
+    for entry in [*parsed, *every]:
+        for role, state in (("from", entry.state), ("to", entry.to)):
+            if state is not None and state != ANY_STATE and state not in states:
+                raise TableError(f"{entry.name}: {role} state {state!r} is not declared in "
+                                 f"states ({', '.join(states)})", state=state,
+                                 row=entry.pos - 1, entry=entry.entry)
+    return list(states)

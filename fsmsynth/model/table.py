@@ -171,19 +171,25 @@ class StateTable:
         otherwise: str = "dont-care",
         state_outputs: Mapping[str, Mapping[str, object]] | None = None,
         invariants: Sequence[str] | None = None,
+        every_state: Sequence[Sequence[object]] = (),
+        states: Sequence[str] | None = None,
     ) -> StateTable:
         """Build a table from guarded transitions, the way designers write a controller.
 
         ``transitions`` are ``(from, guard, to, outputs)``: ``guard`` is an expression over
-        the inputs (see :mod:`fsmsynth.language.guards`) or ``"else"``; ``outputs`` a dict of output
-        -> value (an int, or a bit string of ``0``, ``1`` and ``-``), merged over
-        ``default_outputs`` (an output given nowhere is don't care); Moore machines give
-        ``None`` there and their outputs in ``state_outputs={state: {output: value}}``.
-        A state's transitions are tried in the order written, after those whose ``from`` is
-        ``"*"``; the first whose guard holds fires.  Input combinations no guard covers are
-        unspecified (``otherwise="dont-care"``) or stay in the state with the default
-        outputs (``otherwise="stay"``).  States are declared in the order they first appear
-        as ``from``, then those that appear only as ``to``.
+        the inputs (see :mod:`fsmsynth.language.guards`), ``"else"``, or an
+        :class:`~fsmsynth.language.transitions.ExactCube` (that row as it stands, outside
+        the if/elif chain); ``to`` is ``None`` for a don't-care next state; ``outputs`` a
+        dict of output -> value (an int, or a bit string of ``0``, ``1`` and ``-``), merged
+        over ``default_outputs`` (an output given nowhere is don't care); Moore machines
+        give ``None`` there and their outputs in ``state_outputs={state: {output: value}}``.
+        ``every_state`` are ``(guard, to, outputs)`` transitions every state takes: a
+        state's transitions are tried after them, in the order written, and the first
+        whose guard holds fires.  Input combinations nothing covers are unspecified
+        (``otherwise="dont-care"``) or stay in the state with the default outputs
+        (``otherwise="stay"``).  States are declared by ``states`` (every state a transition
+        names must be in it; a state may have no transitions), else in the order they
+        first appear as ``from``, then those that appear only as ``to``.
 
         The rows of the result are the compiled cubes (disjoint, from BDDs); everything else
         is as :meth:`from_rows` builds it.  ``inputs`` and ``outputs`` are lists of 1-bit
@@ -214,7 +220,8 @@ class StateTable:
         compiled = compile_transitions(kind=kind, inputs=inputs, outputs=outputs,
                                        transitions=transitions,
                                        default_outputs=default_outputs, otherwise=otherwise,
-                                       state_outputs=state_outputs)
+                                       state_outputs=state_outputs, every_state=every_state,
+                                       states=states)
         return cls.from_rows(name=name, kind=kind, inputs=compiled.inputs,
                              outputs=compiled.outputs, rows=compiled.rows, reset=reset,
                              states=compiled.states, state_outputs=compiled.state_outputs,

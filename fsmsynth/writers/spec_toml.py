@@ -18,6 +18,24 @@ def _quote(text: str) -> str:
     return json.dumps(text).replace("\x7f", "\\u007f")
 
 
+def toml_value(value: object) -> str:
+    """``value`` (text, number, bool, list or table of those) as a TOML value on one line."""
+    if isinstance(value, bool):
+        return "true" if value else "false"
+    if isinstance(value, (int, float)):
+        return repr(value)
+    if isinstance(value, str):
+        return _quote(value)
+    if isinstance(value, list):
+        return "[" + ", ".join(toml_value(v) for v in value) + "]"
+    if isinstance(value, dict):
+        if not value:
+            return "{}"
+        return "{ " + ", ".join(f"{_key(str(k))} = {toml_value(v)}"
+                                for k, v in value.items()) + " }"
+    raise TypeError(f"no TOML form for {value!r}")
+
+
 def _array(items: tuple[str, ...] | list[str]) -> str:
     return "[" + ", ".join(_quote(i) for i in items) + "]"
 
@@ -25,41 +43,54 @@ def _array(items: tuple[str, ...] | list[str]) -> str:
 def write_spec(table: StateTable, *, comment: str = "", guards: bool = False) -> str:
     """TOML text that :func:`fsmsynth.formats.spec_toml.parse_spec` reads back to ``table``.
 
-    With ``guards``, the transitions are written as guarded entries (vector ports whole, one
-    entry per next state and output value, ``else`` for the rest of a state) when that says
-    the same machine: when every state has rows, every row names its next state and no
-    two rows of a state overlap.  Otherwise, and by default, the cube rows are written as
-    they are, which reads back to an equal table.
+    By default each row is one ``[[transition]]`` entry with its exact input cube
+    (``cube = "1-0"``, ``to = "-"`` for an open next state), which reads back to an equal
+    table, row for row.  With ``guards``, the transitions are written as guarded entries
+    (vector ports whole, one entry per next state and output value, ``else`` for the rest
+    of a state) when that says the same machine: when every state has rows, every row names
+    its next state and no two rows of a state overlap; otherwise as exact entries.
     """
     out = [f"# {line}" if line else "#" for line in comment.splitlines()]
     if guards:
         written = _guarded(table)
         if written is not None:
             return "\n".join(out + written) + "\n"
-    out += [
+    entries = []
+    for state, cube, nxt, outs in table.rows:
+        fields = (f"from = {_quote(state)}, cube = {_quote(cube)}, "
+                  f"to = {_quote('-' if nxt is None else nxt)}")
+        if table.kind == "mealy":
+            fields += f", set = {_values(outs or '', table.outputs)}"
+        entries.append(f"  {{ {fields} }},")
+    out += _head(table, with_states=True) + [
+        "",
+        "# from a state, on exactly this input cube (one 0, 1 or - per input bit), to the next",
+        "# state (\"-\": don't care), setting outputs (those not set are don't cares)",
+        "transition = [",
+        *entries,
+        "]",
+    ]
+    out += _invariants(table) + _state_outputs(table)
+    return "\n".join(out) + "\n"
+
+
+def _head(table: StateTable, *, with_states: bool) -> list[str]:
+    head = [
         f"name = {_quote(table.name)}",
         f"kind = {_quote(table.kind)}",
-        f"inputs = {_array(table.inputs)}",
-        f"outputs = {_array(table.outputs)}",
+        f"inputs = {_ports(table.inputs)}",
+        f"outputs = {_ports(table.outputs)}",
         f"reset = {_quote(table.reset)}",
-        f"states = {_array(table.states)}",
-        "",
-        "# present state, input cube, next state (\"-\" = don't care)"
-        + (", output cube" if table.kind == "mealy" else ""),
-        "rows = [",
     ]
-    for state, cube, nxt, outs in table.rows:
-        cells = [state, cube, "-" if nxt is None else nxt]
-        if table.kind == "mealy":
-            cells.append(outs or "")
-        out.append(f"  {_array(cells)},")
-    out.append("]")
-    out += _invariants(table)
-    if table.kind == "moore":
-        out += ["", "[state_outputs]"]
-        out += [f"{_quote(s)} = {_quote(table.state_outputs[s])}"
-                for s in table.states if s in table.state_outputs]
-    return "\n".join(out) + "\n"
+    return head + ([f"states = {_array(table.states)}"] if with_states else [])
+
+
+def _state_outputs(table: StateTable) -> list[str]:
+    if table.kind != "moore":
+        return []
+    return ["", "[state_outputs]"] + [
+        f"{_quote(s)} = {_values(table.output_cube_of(s), table.outputs)}"
+        for s in table.states]
 
 
 def _invariants(table: StateTable) -> list[str]:
@@ -134,21 +165,11 @@ def _guarded(table: StateTable) -> list[str] | None:
             if table.kind == "mealy":
                 fields += f", set = {_values(outs, table.outputs)}"
             entries.append(f"  {{ {fields} }},")
-    out = [
-        f"name = {_quote(table.name)}",
-        f"kind = {_quote(table.kind)}",
-        f"inputs = {_ports(table.inputs)}",
-        f"outputs = {_ports(table.outputs)}",
-        f"reset = {_quote(table.reset)}",
+    out = _head(table, with_states=False) + [
         "",
         "# from a state, when a guard holds, to the next state, setting outputs (tried in order)",
         "transition = [",
         *entries,
         "]",
     ]
-    out += _invariants(table)
-    if table.kind == "moore":
-        out += ["", "[state_outputs]"]
-        out += [f"{_quote(s)} = {_values(table.output_cube_of(s), table.outputs)}"
-                for s in table.states]
-    return out
+    return out + _invariants(table) + _state_outputs(table)
