@@ -369,3 +369,68 @@ def test_a_table_without_invariants_gets_an_empty_check_not_none() -> None:
     assert design.invariants is not None and design.invariants
     assert design.invariants.summary() == "no invariants to prove"
     assert synthesize(table, "d", check=False).invariants is None
+
+
+# --- invariants checked together (brute force over every output completion) -------------
+
+
+@st.composite
+def tables_with_invariant_sets(draw: st.DrawFn) -> tuple[StateTable, list[Condition]]:
+    table = draw(state_tables(max_states=4, max_inputs=2, max_outputs=3))
+    signals, states = [*table.inputs, *table.outputs], list(table.states)
+    conds = draw(st.lists(conditions(signals, states, depth=1), min_size=2, max_size=3))
+    return StateTable.from_rows(name=table.name, kind=table.kind, inputs=table.inputs,
+                                outputs=table.outputs, rows=table.rows, reset=table.reset,
+                                states=table.states, state_outputs=table.state_outputs or None,
+                                invariants=[c.text for c in conds]), conds
+
+
+def all_of(conds: list[Condition]) -> Condition:
+    return Condition(" & ".join(f"({c.text})" for c in conds),
+                     lambda v, s: all(c.holds(v, s) for c in conds))
+
+
+@settings(max_examples=150, deadline=None, suppress_health_check=[HealthCheck.too_slow])
+@given(tables_with_invariant_sets())
+def test_invariants_are_proven_together_as_brute_force_says(
+        case: tuple[StateTable, list[Condition]]) -> None:
+    """A set of invariants holds on a table exactly when, in every reachable state, some
+    value of the don't-care outputs satisfies all of them at once; the report names a set
+    that cannot hold together, at the shortest depth."""
+    table, conds = case
+    result = check_invariants(table)
+    expected = shortest_break(table, all_of(conds))
+    assert bool(result) == (expected is None)
+    if expected is None:
+        return
+    broken = result.violation
+    assert broken is not None and len(broken.inputs) == expected
+    named = [next(c for c in conds if c.text == t) for t in (broken.invariant, *broken.together)]
+    assert broken_at(table, all_of(named), broken.states[-1])  # the set named conflicts there
+    if broken.together:  # and each alone could hold there
+        assert not any(broken_at(table, c, broken.states[-1]) for c in named)
+
+
+def test_invariants_that_cannot_hold_together_are_the_tables_fault(
+        capsys: pytest.CaptureFixture[str], tmp_path: Path) -> None:
+    """The reproduction: each of "~a | y" and "~a | ~y" can hold where y is free, not both.
+    They were proven one at a time ("hold") and synthesis then blamed the netlist."""
+    table = StateTable.from_rows(name="m", inputs=["a"], outputs=["y"], reset="s",
+                                 rows=[("s", "1", "s", "-"), ("s", "0", "s", "0")],
+                                 invariants=["~a | y", "~a | ~y"])
+    result = check_invariants(table)
+    assert not result and result.violation is not None
+    assert result.violation.describe() == (
+        "invariants '~a | y' and '~a | ~y' cannot hold together in state 's', 1 clock cycle "
+        "from reset (states s; cycle 1: a=1): no value of the don't-care outputs satisfies "
+        "all of them; the table says y=-")
+    with pytest.raises(InvariantError) as caught:
+        synthesize(table, "d")
+    assert caught.value.result.on == "table"  # type: ignore[attr-defined]
+    spec = tmp_path / "m.toml"
+    spec.write_text('name = "m"\ninputs = ["a"]\noutputs = ["y"]\nreset = "s"\n'
+                    'invariants = ["~a | y", "~a | ~y"]\ntransition = [\n'
+                    '  { from = "s", cube = "1", to = "s" },\n'
+                    '  { from = "s", cube = "0", to = "s", set = { y = 0 } },\n]\n')
+    assert main(["check", str(spec)]) == 2
+    assert "cannot hold together" in capsys.readouterr().out

@@ -34,6 +34,7 @@ from __future__ import annotations
 from collections import deque
 from collections.abc import Sequence
 from dataclasses import dataclass
+from functools import partial
 from typing import Any
 
 from fsmsynth.base.names import ports_of
@@ -68,6 +69,10 @@ class InvariantViolation:
         ``"table"`` or ``"netlist"``.
     input_names, output_names:
         The table's 1-bit names, so that :meth:`describe` can name the values.
+    together:
+        On a table, the other invariants that ``invariant`` cannot hold together with there
+        (each can hold alone, but no value of the don't-care outputs satisfies all of them:
+        the table is at fault, not a netlist); empty when it breaks on its own.
     """
 
     invariant: str
@@ -77,6 +82,7 @@ class InvariantViolation:
     on: str
     input_names: tuple[str, ...] = ()
     output_names: tuple[str, ...] = ()
+    together: tuple[str, ...] = ()
 
     def describe(self) -> str:
         """One sentence a person can act on: the inputs of each cycle by name (vectors as
@@ -85,6 +91,13 @@ class InvariantViolation:
                           for i, w in enumerate(self.inputs))
         path = " -> ".join(self.states)
         said = "the table says" if self.on == "table" else "the netlist gives"
+        if self.together:
+            named = " and ".join(repr(t) for t in (self.invariant, *self.together))
+            return (f"invariants {named} cannot hold together in state {self.states[-1]!r}, "
+                    f"{len(self.inputs)} clock cycle{'s' if len(self.inputs) != 1 else ''} "
+                    f"from reset (states {path}; {steps}): no value of the don't-care "
+                    f"outputs satisfies all of them; {said} "
+                    f"{_named(self.outputs, self.output_names)}")
         return (f"invariant {self.invariant!r} breaks in state {self.states[-1]!r}, "
                 f"{len(self.inputs)} clock cycle{'s' if len(self.inputs) != 1 else ''} from "
                 f"reset (states {path}; {steps}); {said} "
@@ -207,29 +220,56 @@ def check_invariants(table: StateTable, netlist: Netlist | None = None) -> Invar
     while queue:
         state = queue.popleft()
         here = regions[state]
-        for text, condition in zip(table.invariants, conditions[state]):
-            allowed = _allowed(condition, here.out_on, here.out_off, signals.outputs)
-            if table.kind == "moore":
-                if not allowed.consensus(signals.inputs).smoothing(signals.outputs).is_zero():
-                    continue
-                fixed = {var: 1 if high.is_one() else 0
-                         for var, high in zip(signals.outputs, here.out_on)}
-                bad = ~allowed.restrict(fixed)
-            else:
-                bad = ~allowed.smoothing(signals.outputs)
-            if bad.is_zero():
-                continue
+        broken = partial(_broken, conditions=conditions[state], here=here, signals=signals,
+                         moore=table.kind == "moore")
+        every = range(len(table.invariants))
+        alone = next(((i, bad) for i in every if not (bad := broken([i])).is_zero()), None)
+        together = () if alone is not None else _conflict(every, broken)
+        if alone is not None or together:
+            first, bad = alone if alone is not None else (together[0], broken(together))
             point = bdd.point_of(bad, signals.inputs)
             words, states = _path(parent, state, _word(point, n_in))
             at = bdd.cube_bdd(Cube.minterm(point, n_in), signals.inputs)
             return InvariantCheck(table.invariants, len(parent), "table", InvariantViolation(
-                text, words, states, _specified(here.out_on, here.out_off, at), "table",
-                table.inputs, table.outputs))
+                table.invariants[first], words, states,
+                _specified(here.out_on, here.out_off, at), "table", table.inputs,
+                table.outputs, tuple(table.invariants[i] for i in together[1:])))
         for nxt, points in here.next:
             if nxt not in parent:
                 parent[nxt] = (state, _word(bdd.point_of(points, signals.inputs), n_in))
                 queue.append(nxt)
     return InvariantCheck(table.invariants, len(parent), "table")
+
+
+def _broken(indices: Sequence[int], *, conditions: Sequence[Any], here: Any, signals: Signals,
+            moore: bool) -> Any:
+    """Input points of a state (``here``, its regions) where no output value the table
+    allows satisfies every invariant of ``indices`` together (a Moore state: no one value
+    for every input)."""
+    condition = bdd.ONE
+    for i in indices:
+        condition &= conditions[i]
+    allowed = _allowed(condition, here.out_on, here.out_off, signals.outputs)
+    if moore:
+        if not allowed.consensus(signals.inputs).smoothing(signals.outputs).is_zero():
+            return bdd.ZERO
+        fixed = {var: 1 if high.is_one() else 0
+                 for var, high in zip(signals.outputs, here.out_on)}
+        return ~allowed.restrict(fixed)
+    return ~allowed.smoothing(signals.outputs)
+
+
+def _conflict(indices: Sequence[int], broken: Any) -> tuple[int, ...]:
+    """A smallest-by-deletion set of invariants that cannot hold together, or ``()`` when
+    all of them can: drop each one in turn while the rest still conflict."""
+    keep = list(indices)
+    if len(keep) < 2 or broken(keep).is_zero():
+        return ()
+    for i in list(keep):
+        rest = [j for j in keep if j != i]
+        if len(rest) >= 2 and not broken(rest).is_zero():
+            keep = rest
+    return tuple(keep)
 
 
 def _path(parent: dict[Any, tuple[Any, str] | None], node: Any, last: str
