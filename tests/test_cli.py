@@ -67,7 +67,8 @@ def test_bad_spec_exits_nonzero_without_traceback(tmp_path: Path) -> None:
     assert run.returncode == 2
     assert "Traceback" not in run.stderr
     assert run.stderr == (f"fsmsynth: error: {spec}:24: transition 8: to state 'wran' is not "
-                          "declared in states (locked, unlocked, open, warn)\n")
+                          "declared in states; did you mean 'warn'? (locked, unlocked, open, "
+                          "warn)\n")
 
 
 def test_unknown_encoding_is_a_clear_error(capsys: pytest.CaptureFixture[str]) -> None:

@@ -11,7 +11,7 @@ import itertools
 from typing import Any
 
 import pytest
-from hypothesis import given, settings
+from hypothesis import assume, given, settings
 from hypothesis import strategies as st
 
 from fsmsynth import STORAGES, StateTable, synthesize
@@ -147,7 +147,7 @@ def test_compiled_rows_agree_with_the_guards_in_priority_order(machine: Machine,
     dead = never_fires(transitions, widths)
     options: dict[str, Any] = dict(name="m", reset=states[0], inputs=dict(zip(names, widths)),
                                    outputs=["z"], default_outputs={"z": 0},
-                                   otherwise=otherwise)
+                                   otherwise=otherwise, states=states)
     if dead:
         # A transition that never fires is refused, and the one named is truly dead.
         with pytest.raises(TableError, match="can never fire") as caught:
@@ -466,3 +466,83 @@ def test_exact_cubes_and_open_next_states_say_a_table_row_for_row() -> None:
                                          r"states \(a, b, c\)$"):
         StateTable.from_transitions(name="m", reset="a", inputs=["x"], outputs=["z"],
                                     states=["a", "b", "c"], transitions=[("a", "x", "d", {})])
+
+
+ONOFF = """\
+name = "lamp"
+inputs = ["press"]
+outputs = ["light"]
+reset = "off"
+default_outputs = { light = 0 }
+{states}
+[[transition]]
+from = "off"
+when = "press"
+to = "{target}"
+set = { light = 1 }
+
+[[transition]]
+from = "on"
+when = "press"
+to = "off"
+"""
+
+
+@pytest.mark.parametrize("states, message", [
+    ("", "transition 1: to state 'onn' has no transitions of its own; did you mean 'on'? "
+         "(a state meant to have none is declared in states)"),
+    ('states = ["off", "on"]\n', "transition 1: to state 'onn' is not declared in states; "
+                                 "did you mean 'on'? (off, on)"),
+])
+def test_a_misspelled_target_state_is_refused_with_a_suggestion(states: str,
+                                                                 message: str) -> None:
+    """The reproduction: `to = "onn"` once built a machine stuck in a new state 'onn'."""
+    from fsmsynth.base.errors import SpecFileError
+    from fsmsynth.formats.spec_toml import parse_spec
+    text = ONOFF.replace("{states}", states).replace("{target}", "onn")
+    line = 8 if states else 7
+    with pytest.raises(SpecFileError) as caught:
+        parse_spec(text, "lamp.toml")
+    assert str(caught.value) == f"lamp.toml:{line}: {message}"
+    assert parse_spec(ONOFF.replace("{states}", states).replace("{target}", "on"), "lamp.toml")
+
+
+def test_an_unknown_input_in_a_guard_gets_the_closest_names() -> None:
+    with pytest.raises(TableError) as caught:
+        build([("a", "strat & ok", "a", {})])
+    assert caught.value.message == (
+        "transition 1 (a -> a, guard 'strat & ok'): unknown input 'strat' at column 1; did "
+        "you mean 'start'? (inputs: start, ok)")
+
+
+NAMES = ["idle", "fill", "drain", "heat", "cool", "open", "shut", "wait", "purge", "alarm"]
+
+
+def _one_edit(draw: st.DrawFn, word: str) -> str:
+    at = draw(st.integers(0, len(word) - 1))
+    letter = draw(st.sampled_from("abcdefghijklmnopqrstuvwxyz"))
+    kind = draw(st.sampled_from(["swap", "drop", "add"]))
+    if kind == "swap":
+        return word[:at] + letter + word[at + 1:]
+    if kind == "drop":
+        return word[:at] + word[at + 1:]
+    return word[:at] + letter + word[at:]
+
+
+@settings(max_examples=100, deadline=None)
+@given(st.data())
+def test_a_target_mutated_by_one_character_is_refused_naming_the_original(
+        data: st.DataObject) -> None:
+    states = data.draw(st.lists(st.sampled_from(NAMES), min_size=2, max_size=6, unique=True))
+    transitions = [(s, "go" if k % 2 else "else", data.draw(st.sampled_from(states)), {})
+                   for s in states for k in range(1, 3)]
+    k = data.draw(st.integers(0, len(transitions) - 1))
+    frm, guard, to, out = transitions[k]
+    typo = _one_edit(data.draw, to)
+    assume(typo not in states and typo)
+    transitions[k] = (frm, guard, typo, out)
+    with pytest.raises(TableError) as caught:
+        StateTable.from_transitions(name="m", reset=states[0], inputs=["go"], outputs=[],
+                                    transitions=transitions)
+    assert caught.value.message.startswith(f"transition {k + 1}: to state {typo!r}")
+    assert repr(to) in caught.value.message.split("did you mean ")[1].split("?")[0]

@@ -8,6 +8,7 @@ fsmsynth itself puts in the netlist and the equations.
 
 from __future__ import annotations
 
+import difflib
 import re
 from collections.abc import Sequence
 
@@ -125,3 +126,12 @@ def name_problem(name: object) -> str | None:
             "(Q0, D1, J2, ...): rename it"
         )
     return None
+
+
+def did_you_mean(name: str, known: Sequence[str]) -> str:
+    """``"; did you mean 'on'?"`` for the known names closest to a misspelled ``name``
+    (at most three, by difflib's similarity ratio of at least 0.6), or ``""``."""
+    close = difflib.get_close_matches(name, list(dict.fromkeys(known)), n=3, cutoff=0.6)
+    if not close:
+        return ""
+    return "; did you mean " + " or ".join(repr(c) for c in close) + "?"

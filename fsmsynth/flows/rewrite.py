@@ -33,6 +33,8 @@ def rewrite_spec(text: str, path: str = "<string>", *, guards: bool = False) -> 
     every = [e for e in data.get("transition", []) if e.get("from") == "*"]
     own = [e for e in data.get("transition", []) if e.get("from") != "*"]
     every += data.get("every_state", [])
+    if "states" not in data:  # the declaration order the older reading gave, made explicit
+        data["states"] = list(table.states)
     out = [f"# {note}"] + [f"{key} = {toml_value(data[key])}" for key in _TOP if key in data]
     for name, entries, drop in (("every_state", every, "from"), ("transition", own, None)):
         for entry in entries:

@@ -169,11 +169,15 @@ def _guarded(data: dict[str, Any], path: str, lines: _Lines, legacy: bool) -> St
             transitions.append((entry["from"], guard, entry["to"], outputs(entry)))
     every += [(entry["when"], entry["to"], outputs(entry))
               for entry in _entries(data, "every_state", EVERY_STATE_KEYS, path, lines)]
+    states = data.get("states")
+    if legacy and states is None:  # older files declared states by their first mention
+        named = [t[0] for t in transitions] + [t[2] for t in transitions] + [e[1] for e in every]
+        states = [n for n in dict.fromkeys(named) if n not in ("-", "*")]
     try:
         return StateTable.from_transitions(
             name=data["name"], kind=data.get("kind", "mealy"), reset=data["reset"],
             inputs=data["inputs"], outputs=data["outputs"], transitions=transitions,
-            every_state=every, states=data.get("states"),
+            every_state=every, states=states,
             default_outputs=data.get("default_outputs"),
             otherwise=data.get("otherwise", "dont-care"),
             state_outputs=data.get("state_outputs"), invariants=data.get("invariants"))

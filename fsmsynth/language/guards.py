@@ -32,7 +32,7 @@ from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 from typing import Any
 
-from fsmsynth.base.names import port_bits, ports_of
+from fsmsynth.base.names import did_you_mean, port_bits, ports_of
 from fsmsynth.logic import bdd
 from fsmsynth.logic.cube import Cube
 
@@ -164,8 +164,9 @@ class _Parser:
         if token.text not in self.widths:
             known = ", ".join(self.widths) or "none"
             extra = "; or state == NAME, in(state, A, B)" if self.states is not None else ""
-            raise GuardError(f"unknown {self.role} {token.text!r} at column {token.column} "
-                             f"({self.role}s: {known}{extra})", token.column, token.text)
+            hint = did_you_mean(token.text, list(self.widths))
+            raise GuardError(f"unknown {self.role} {token.text!r} at column {token.column}"
+                             f"{hint} ({self.role}s: {known}{extra})", token.column, token.text)
         width = self.widths[token.text]
         bits = self.bits[token.text]
         after = self.peek()
@@ -211,7 +212,8 @@ class _Parser:
                              f"{_shown(token)}", token.column, token.text)
         assert self.states is not None
         if token.text not in self.states:
-            raise GuardError(f"unknown state {token.text!r} at column {token.column} (states: "
+            raise GuardError(f"unknown state {token.text!r} at column {token.column}"
+                             f"{did_you_mean(token.text, self.states)} (states: "
                              f"{', '.join(self.states)})", token.column, token.text)
         return token.text
 

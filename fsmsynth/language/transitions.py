@@ -17,7 +17,7 @@ from dataclasses import dataclass
 from typing import Any
 
 from fsmsynth.base.errors import TableError
-from fsmsynth.base.names import port_bits
+from fsmsynth.base.names import did_you_mean, port_bits
 from fsmsynth.language.guards import GuardError, compile_guard
 from fsmsynth.logic import bdd
 from fsmsynth.logic.cube import Cube
@@ -71,7 +71,8 @@ def _output_word(outputs: Mapping[str, int], defaults: Mapping[str, object],
         raise TableError(f"{where}: outputs must be a dict of output -> value, not {given!r}")
     for port in given:
         if port not in outputs:
-            raise TableError(f"{where}: unknown output {port!r} (outputs: "
+            raise TableError(f"{where}: unknown output {port!r}"
+                             f"{did_you_mean(str(port), list(outputs))} (outputs: "
                              f"{', '.join(outputs) or 'none'})", name=str(port))
     word = []
     for port, width in outputs.items():
@@ -123,7 +124,8 @@ def compile_transitions(*, kind: str, inputs: object, outputs: object,
     defaults = dict(default_outputs or {})
     for port in defaults:
         if port not in out_widths:
-            raise TableError(f"default_outputs: unknown output {port!r}", name=str(port))
+            raise TableError(f"default_outputs: unknown output {port!r}"
+                             f"{did_you_mean(str(port), list(out_widths))}", name=str(port))
     for what, entries in (("transitions", transitions), ("every_state", every_state)):
         if isinstance(entries, (str, bytes)) or not isinstance(entries, Sequence):
             raise TableError(f"{what} must be a list of entries, not {entries!r}")
@@ -175,7 +177,8 @@ def compile_transitions(*, kind: str, inputs: object, outputs: object,
         moore_words = {}
         for state, given in (state_outputs or {}).items():
             if state not in declared:
-                raise TableError(f"state_outputs: unknown state {state!r}", state=str(state))
+                raise TableError(f"state_outputs: unknown state {state!r}"
+                                 f"{did_you_mean(str(state), declared)}", state=str(state))
             moore_words[state] = _output_word(out_widths, defaults, given,
                                               f"state_outputs of {state!r}")
         for state in declared:
@@ -295,6 +298,16 @@ def _declared(parsed: Sequence[_Entry], every: Sequence[_Entry],
     then states that only appear as next states."""
     named = [e.state for e in parsed] + [e.to for e in [*every, *parsed] if e.to is not None]
     if states is None:
+        # A next state must be a state: one with transitions of its own (a misspelled name
+        # would otherwise become a new state that the machine sticks in).
+        leaving = list(dict.fromkeys(e.state for e in parsed))
+        for entry in [*every, *parsed]:
+            if entry.to is not None and entry.to not in leaving:
+                raise TableError(
+                    f"{entry.name}: to state {entry.to!r} has no transitions of its own"
+                    f"{did_you_mean(entry.to, leaving)} (a state meant to have none is "
+                    "declared in states)", state=entry.to, row=entry.pos - 1,
+                    entry=entry.entry)
         return list(dict.fromkeys(named))
     if isinstance(states, (str, bytes)) or not all(isinstance(s, str) for s in states):
         raise TableError(f"states must be a list of names, not {states!r}")
@@ -302,6 +315,7 @@ def _declared(parsed: Sequence[_Entry], every: Sequence[_Entry],
         for role, state in (("from", entry.state), ("to", entry.to)):
             if state is not None and state != ANY_STATE and state not in states:
                 raise TableError(f"{entry.name}: {role} state {state!r} is not declared in "
-                                 f"states ({', '.join(states)})", state=state,
+                                 f"states{did_you_mean(state, states)} "
+                                 f"({', '.join(states)})", state=state,
                                  row=entry.pos - 1, entry=entry.entry)
     return list(states)
