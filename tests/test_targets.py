@@ -464,23 +464,7 @@ def test_random_mapped_designs_simulate_in_icarus(table: StateTable, storage: st
     assert run.stdout.strip().splitlines()[-1].startswith("PASS"), run.stdout[-400:]
 
 
-MUX_LIB = """name = "{name}"
-
-[flip_flops]
-d = 5.0
-
-[[cell]]
-name = "INV"
-pins = ["a"]
-function = "~a"
-area = 0.5
-
-[[cell]]
-name = "NAND2"
-pins = ["a", "b"]
-function = "~(a & b)"
-area = 1
-
+MUX_LIB = LIB.replace('name = "tiny"', 'name = "{name}"') + """
 [[cell]]
 name = "MUX2"
 pins = {pins}
