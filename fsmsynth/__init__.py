@@ -34,6 +34,7 @@ from fsmsynth.flows.project import DesignOutcome, ProjectBuild, build_project
 from fsmsynth.flows.project_file import read_project
 from fsmsynth.flows.sweep import Sweep, SweepRow, sweep
 from fsmsynth.formats import read_table
+from fsmsynth.language.transitions import ExactCube
 from fsmsynth.logic.cost import Cost, CostWeights
 from fsmsynth.logic.sop import SopCover, minimize_sop
 from fsmsynth.map.targets import Target, target_named
@@ -48,7 +49,8 @@ from fsmsynth.version import __version__
 
 __all__ = [
     # model
-    "StateTable", "Storage", "STORAGES", "Encoding", "Equation", "Netlist", "Gate", "FlipFlop",
+    "StateTable", "ExactCube", "Storage", "STORAGES", "Encoding", "Equation", "Netlist", "Gate",
+    "FlipFlop",
     "Cost", "CostWeights",
     # stages
     "minimize_states", "StateMinimization", "encode", "minimize_sop", "SopCover",
