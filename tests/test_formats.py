@@ -307,3 +307,38 @@ def test_the_rewrite_command_turns_older_files_into_the_same_machines(
         assert capsys.readouterr().out == f"wrote {new}\n"
         assert parse_spec(new.read_text()) == parse_spec(text, legacy=True)
     assert '[[every_state]]\nwhen = "stop"\nto = "rest"' in (tmp_path / "new_star.toml").read_text()
+
+
+MOORE_SPEC = """\
+name = "dryer"
+kind = "moore"
+inputs = ["go"]
+outputs = ["blower", "heater"]
+reset = "idle"
+transition = [
+  { from = "idle", when = "go", to = "dry" },
+  { from = "dry", when = "~go", to = "drain" },
+  { from = "drain", when = "1", to = "idle" },
+]
+
+[state_outputs]
+idle = { blower = 0, heater = 0 }
+dry = { blower = 1, heater = 1 }
+{drain}
+"""
+
+
+@pytest.mark.parametrize("drain, message", [
+    ("", "lamp.toml:12: Moore state 'drain' has no outputs: give them in [state_outputs] "
+         "(drain = { blower = 0, heater = 0 }) or in default_outputs; write \"-\" for an "
+         "output that may be anything"),
+    ("drain = { heater = 0 }", "lamp.toml:15: Moore state 'drain' does not say 'blower': give "
+     "them in [state_outputs] (drain = { blower = 0 }) or in default_outputs; write \"-\" "
+     "for an output that may be anything"),
+])
+def test_a_moore_state_left_out_of_state_outputs_is_refused(drain: str, message: str) -> None:
+    """The reproduction: a drain state left out of [state_outputs] made every output a don't
+    care, and the minimizer turned the blower on there."""
+    assert error_of(MOORE_SPEC.replace("{drain}", drain), legacy=False) == message
+    said = parse_spec(MOORE_SPEC.replace("{drain}", 'drain = { blower = 0, heater = "-" }'))
+    assert said.output_cube_of("drain") == "0-"

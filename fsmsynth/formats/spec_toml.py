@@ -174,7 +174,7 @@ def _guarded(data: dict[str, Any], path: str, lines: _Lines, legacy: bool) -> St
         named = [t[0] for t in transitions] + [t[2] for t in transitions] + [e[1] for e in every]
         states = [n for n in dict.fromkeys(named) if n not in ("-", "*")]
     try:
-        return StateTable.from_transitions(
+        table = StateTable.from_transitions(
             name=data["name"], kind=data.get("kind", "mealy"), reset=data["reset"],
             inputs=data["inputs"], outputs=data["outputs"], transitions=transitions,
             every_state=every, states=states,
@@ -187,6 +187,33 @@ def _guarded(data: dict[str, Any], path: str, lines: _Lines, legacy: bool) -> St
                 else lines.locate(exc, data))
         raise SpecFileError(exc.message, path=path, line=line, state=exc.state, row=exc.row,
                             name=exc.name) from None
+    if moore and not legacy:
+        _moore_outputs_said(table, data, path, lines)
+    return table
+
+
+def _moore_outputs_said(table: StateTable, data: dict[str, Any], path: str,
+                        lines: _Lines) -> None:
+    """In a spec file a Moore state's outputs are said, never implied: a state that
+    [state_outputs] leaves out, where default_outputs does not give every output, is an
+    error (it once made every output a don't care, which the minimizer was free to set)."""
+    given = data.get("state_outputs") or {}
+    defaults = data.get("default_outputs") or {}
+    outputs = data["outputs"] if isinstance(data["outputs"], dict) else dict.fromkeys(
+        data["outputs"], 1)
+    for state in table.states:
+        said = given.get(state, {})
+        missing = [o for o in outputs if o not in defaults and o not in said]
+        if not missing:
+            continue
+        what = ("has no outputs" if state not in given else
+                f"does not say {', '.join(repr(o) for o in missing)}")
+        raise SpecFileError(
+            f"Moore state {state!r} {what}: give them in [state_outputs] "
+            f"({state} = {{ {', '.join(f'{o} = 0' for o in missing)} }}) or in "
+            "default_outputs; write \"-\" for an output that may be anything",
+            path=path, line=(lines.key(state, "state_outputs") or lines.section("state_outputs")
+                             or lines.key("outputs")), state=state)
 
 
 def _expect(data: dict[str, Any], key: str, kind: type, path: str, lines: _Lines) -> None:

@@ -89,7 +89,7 @@ def _state_outputs(table: StateTable) -> list[str]:
     if table.kind != "moore":
         return []
     return ["", "[state_outputs]"] + [
-        f"{_quote(s)} = {_values(table.output_cube_of(s), table.outputs)}"
+        f"{_quote(s)} = {_values(table.output_cube_of(s), table.outputs, every=True)}"
         for s in table.states]
 
 
@@ -111,13 +111,15 @@ def _key(name: str) -> str:
     return name if bare else _quote(name)
 
 
-def _values(word: str, names: tuple[str, ...]) -> str:
-    """``{ fill = 1, speed = 5 }``: each output port the word specifies (ints where whole)."""
+def _values(word: str, names: tuple[str, ...], *, every: bool = False) -> str:
+    """``{ fill = 1, speed = 5 }``: each output port the word specifies (ints where whole);
+    with ``every``, the free ones too, as ``"-"`` (a Moore state's outputs are said, never
+    implied)."""
     parts, at = [], 0
     for port, width in ports_of(names):
         chars = word[at:at + (width or 1)]
         at += width or 1
-        if set(chars) == {"-"}:
+        if set(chars) == {"-"} and not every:
             continue
         value = str(int(chars, 2)) if "-" not in chars else _quote(chars)
         parts.append(f"{_key(port)} = {value}")
