@@ -14,6 +14,7 @@ from fsmsynth.base.errors import (
     SpecFileError,
     TableError,
     VerificationError,
+    WarningsAsErrors,
 )
 from fsmsynth.checks.invariants import (
     InvariantCheck,
@@ -23,6 +24,8 @@ from fsmsynth.checks.invariants import (
 )
 from fsmsynth.checks.proof import Counterexample, Verification
 from fsmsynth.checks.simulate import simulate
+from fsmsynth.checks.spec_warnings import WARNINGS, SpecWarning, spec_warnings
+from fsmsynth.checks.table_check import TableReport, check_table
 from fsmsynth.checks.timing import Delays, GateDelay, TimingReport, timing
 from fsmsynth.checks.verify import verify
 from fsmsynth.flows.build_options import BuildOptions, Project, ProjectSpec
@@ -38,6 +41,7 @@ from fsmsynth.language.transitions import ExactCube
 from fsmsynth.logic.cost import Cost, CostWeights
 from fsmsynth.logic.sop import SopCover, minimize_sop
 from fsmsynth.map.targets import Target, target_named
+from fsmsynth.model.intent import Intent
 from fsmsynth.model.storage import STORAGES, Storage
 from fsmsynth.model.table import StateTable
 from fsmsynth.stages.encode import Encoding, encode
@@ -49,8 +53,8 @@ from fsmsynth.version import __version__
 
 __all__ = [
     # model
-    "StateTable", "ExactCube", "Storage", "STORAGES", "Encoding", "Equation", "Netlist", "Gate",
-    "FlipFlop",
+    "StateTable", "ExactCube", "Intent", "Storage", "STORAGES", "Encoding", "Equation",
+    "Netlist", "Gate", "FlipFlop",
     "Cost", "CostWeights",
     # stages
     "minimize_states", "StateMinimization", "encode", "minimize_sop", "SopCover",
@@ -58,12 +62,13 @@ __all__ = [
     "compare", "Comparison", "ComparisonRow", "convert_storage", "StorageConversion",
     "timing", "TimingReport", "Delays", "GateDelay",
     "check_invariants", "constrain_outputs", "InvariantCheck", "InvariantViolation",
+    "check_table", "TableReport", "spec_warnings", "SpecWarning", "WARNINGS",
     "Target", "target_named",
     # many designs
     "read_table", "read_project", "build_project", "ProjectBuild", "DesignOutcome",
     "BuildOptions", "Project", "ProjectSpec", "sweep", "Sweep", "SweepRow",
     # errors
     "FsmSynthError", "TableError", "SpecFileError", "OptionError", "EncodingError",
-    "NetlistError", "VerificationError", "InvariantError",
+    "NetlistError", "VerificationError", "InvariantError", "WarningsAsErrors",
     "__version__",
 ]

@@ -430,7 +430,7 @@ def test_invariants_that_cannot_hold_together_are_the_tables_fault(
     spec = tmp_path / "m.toml"
     spec.write_text('name = "m"\ninputs = ["a"]\noutputs = ["y"]\nreset = "s"\n'
                     'invariants = ["~a | y", "~a | ~y"]\ntransition = [\n'
-                    '  { from = "s", cube = "1", to = "s" },\n'
+                    '  { from = "s", cube = "1", to = "s", set = { y = "-" } },\n'
                     '  { from = "s", cube = "0", to = "s", set = { y = 0 } },\n]\n')
     assert main(["check", str(spec)]) == 2
     assert "cannot hold together" in capsys.readouterr().out

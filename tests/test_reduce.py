@@ -14,7 +14,7 @@ from strategies import state_tables
 
 import fsmsynth.stages.reduce as reduce_module
 from fsmsynth import StateTable
-from fsmsynth.checks.table_check import reachable_states
+from fsmsynth.checks.spec_warnings import reachable_states
 from fsmsynth.stages.reduce import minimize_states
 
 

@@ -64,6 +64,15 @@ class SpecFileError(TableError):
         self.line = line
 
 
+class WarningsAsErrors(FsmSynthError):
+    """Spec warnings that a strict build refuses (:mod:`fsmsynth.checks.spec_warnings`);
+    ``warnings`` holds them and the message lists them, one per line."""
+
+    def __init__(self, message: str, warnings: tuple[object, ...]) -> None:
+        super().__init__(message)
+        self.warnings = warnings
+
+
 class OptionError(FsmSynthError, ValueError):
     """An option value that fsmsynth does not know (storage kind, encoding, ...)."""
 

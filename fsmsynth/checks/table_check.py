@@ -7,9 +7,10 @@ may be a placeholder.  Designers of machinery should still read the report (see 
 
 from __future__ import annotations
 
-from collections import deque
+from collections.abc import Sequence
 from dataclasses import dataclass
 
+from fsmsynth.checks.spec_warnings import SpecWarning, reachable_states, spec_warnings
 from fsmsynth.language.guards import guard_text
 from fsmsynth.logic.cube import Cube, sharp
 from fsmsynth.logic.engine_lock import exclusive
@@ -33,6 +34,9 @@ class TableReport:
         The table's input names, so that :meth:`lines` can write those cubes as guards.
     dont_care_next:
         ``(state, input cube)`` of rows whose next state is a don't care.
+    warnings:
+        What the spec says that its designer may not have meant
+        (:func:`fsmsynth.checks.spec_warnings.spec_warnings`), less the accepted ones.
     """
 
     reachable: tuple[str, ...]
@@ -40,18 +44,23 @@ class TableReport:
     unspecified: tuple[tuple[str, tuple[str, ...]], ...]
     dont_care_next: tuple[tuple[str, str], ...]
     inputs: tuple[str, ...] = ()
+    warnings: tuple[SpecWarning, ...] = ()
 
     @property
     def completely_specified(self) -> bool:
         """Whether every state has a next state for every input combination."""
         return not self.unspecified and not self.dont_care_next
 
-    def lines(self) -> list[str]:
-        """The findings as sentences."""
+    def lines(self, *, besides_warnings: bool = False) -> list[str]:
+        """The findings as sentences; with ``besides_warnings``, those a warning says
+        already are left out."""
         out = []
-        if self.unreachable:
+        warned = {(w.id, w.subject) for w in self.warnings} if besides_warnings else set()
+        if self.unreachable and not warned & {("unreachable-state", s) for s in self.unreachable}:
             out.append(f"unreachable from reset: {', '.join(self.unreachable)}")
         for state, cubes in self.unspecified:
+            if ("uncovered-inputs", state) in warned:
+                continue
             guards = " | ".join(
                 f"({g})" if "&" in g and len(cubes) > 1 else g
                 for g in (guard_text(Cube.from_string(c), self.inputs) for c in cubes))
@@ -62,22 +71,10 @@ class TableReport:
         return out
 
 
-def reachable_states(table: StateTable) -> tuple[str, ...]:
-    """States reachable from reset through specified transitions, in declaration order."""
-    seen = {table.reset}
-    queue = deque([table.reset])
-    while queue:
-        state = queue.popleft()
-        for _s, _c, nxt, _o in table.rows_of(state):
-            if nxt is not None and nxt not in seen:
-                seen.add(nxt)
-                queue.append(nxt)
-    return tuple(s for s in table.states if s in seen)
-
-
 @exclusive
-def check_table(table: StateTable) -> TableReport:
-    """Report what ``table`` leaves unspecified.  Cost: O(rows^2 x inputs) in the worst case."""
+def check_table(table: StateTable, accept: Sequence[str] = ()) -> TableReport:
+    """Report what ``table`` leaves unspecified, and its warnings less those ``accept``
+    names.  Cost: O(rows^2 x inputs) in the worst case."""
     reachable = reachable_states(table)
     reached = set(reachable)
     n = len(table.inputs)
@@ -96,4 +93,5 @@ def check_table(table: StateTable) -> TableReport:
         unspecified=tuple(unspecified),
         dont_care_next=dont_care,
         inputs=table.inputs,
+        warnings=spec_warnings(table, accept),
     )

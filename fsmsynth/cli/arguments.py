@@ -99,10 +99,21 @@ def read_table_arg(args: argparse.Namespace) -> StateTable:
     return read_table(args.spec, settings or None)
 
 
+def warning_options(command: argparse.ArgumentParser) -> None:
+    """``--strict`` and ``--accept``: what the spec warnings do in this run."""
+    command.add_argument("--strict", action="store_true",
+                         help="refuse a spec with warnings (exit 2) instead of building it")
+    command.add_argument("--accept", type=list_arg, action="extend", default=[],
+                         metavar="WARNING",
+                         help="accept these warnings in this run: identifiers (unread-input) "
+                              "or identifier:subject (no-exit:lockout), comma-separated")
+
+
 def design_options(command: argparse.ArgumentParser) -> None:
     """The options that shape a design: ``build`` and ``timing`` take the same, so that
     ``timing`` times the netlist ``build`` writes."""
     target_options(command)
+    warning_options(command)
     command.add_argument("--storage", default="d", type=str,
                          help=f"flip-flop kind: {', '.join(sorted(STORAGES))}, best (cheapest per "
                               "bit), or one kind per state bit, bit 0 first (jk,d); default d")
@@ -218,6 +229,7 @@ def parser() -> argparse.ArgumentParser:
     comp.add_argument("--weights", help="cost weights TOML file (docs/guide/synthesis.md)")
     comp.add_argument("--jobs", type=positive, default=1,
                       help="run designs on this many worker processes (default 1)")
+    warning_options(comp)
     fmt = comp.add_mutually_exclusive_group()
     fmt.add_argument("--json", action="store_true", help="print JSON")
     fmt.add_argument("--csv", action="store_true", help="print CSV")
@@ -239,6 +251,7 @@ def parser() -> argparse.ArgumentParser:
     check = sub.add_parser("check", help="validate a state table and report what it leaves open")
     check.add_argument("spec", help="state table: .toml spec or .csv table")
     table_settings(check)
+    warning_options(check)
     check.add_argument("--json", action="store_true", help="print a JSON report instead of text")
     many = sub.add_parser("build-all", help="build every spec of a project file, in parallel, "
                           "rebuilding only what changed")
@@ -250,6 +263,7 @@ def parser() -> argparse.ArgumentParser:
                            "or differ from what its spec gives now")
     many.add_argument("--rebuild", action="store_true",
                       help="build every design, changed or not")
+    warning_options(many)
     many.add_argument("-q", "--quiet", action="store_true", help="leave out the caution block")
 
     sw = sub.add_parser("sweep", help="every spec of a project x storage x encoding x target: "

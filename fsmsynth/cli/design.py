@@ -18,7 +18,15 @@ from fsmsynth.cli.arguments import (
     target_arg,
     weights_arg,
 )
-from fsmsynth.cli.printing import CAUTION, article, minimization_lines, target_lines
+from fsmsynth.cli.printing import (
+    CAUTION,
+    accepted_arg,
+    article,
+    minimization_lines,
+    print_warnings,
+    run_warnings,
+    target_lines,
+)
 from fsmsynth.flows.build_options import BuildOptions
 from fsmsynth.flows.compare import compare
 from fsmsynth.flows.convert import convert_storage
@@ -64,6 +72,7 @@ def design_report(design: Design) -> dict[str, object]:
         "glitch_free": list(design.glitches.glitch_free),
         "hazard_free_outputs": list(design.hazard_free),
         "multi_bit_steps": [list(x) for x in design.multi_bit_steps],
+        "warnings": [w.as_dict() for w in design.warnings],
     }
 
 
@@ -82,13 +91,14 @@ def options_of(args: argparse.Namespace) -> BuildOptions:
         width=args.width, clock_edge=args.clock_edge, jobs=args.jobs,
         time_limit=args.time_limit, force=args.force, target=target_arg(args.target),
         map_for=args.map_for, outputs=args.outputs, unit_distance=args.unit_distance,
-        **files)
+        strict=args.strict, accept_warnings=accepted_arg(args), **files)
 
 
 def build_command(args: argparse.Namespace) -> int:
     table = read_table_arg(args)
     options = options_of(args)
     design = synthesize_with(table, options)
+    print_warnings(design.warnings)
     out = Path(args.out)
     files = {out / name: text for name, text in design_files(design, options).items()}
     if args.check:
@@ -172,6 +182,7 @@ def timing_command(args: argparse.Namespace) -> int:
     table = read_table_arg(args)
     options = options_of(args)
     design = synthesize_with(table, options)
+    print_warnings(design.warnings)
     target = target_named(options.target)
     cells = {c.name for c in target.cells} | {f"LUT{k}" for k in range(1, target.lut_size + 1)}
     delays = read_delays(args.delays, cells=cells) if args.delays else None
@@ -201,6 +212,7 @@ def timing_command(args: argparse.Namespace) -> int:
 
 def compare_command(args: argparse.Namespace) -> int:
     table = read_table_arg(args)
+    warnings = run_warnings(table, args)
     options = dict(storages=args.storages, encodings=args.encodings, logic=args.logic,
                    weights=weights_arg(args.weights), target=target_arg(args.target),
                    map_for=args.map_for)
@@ -236,7 +248,8 @@ def compare_command(args: argparse.Namespace) -> int:
                         row.verified])
     if args.json:
         print(json.dumps({"machine": result.machine,
-                          "designs": [dict(zip(header, r)) for r in records]}, indent=2))
+                          "designs": [dict(zip(header, r)) for r in records],
+                          "warnings": [w.as_dict() for w in warnings]}, indent=2))
         return 0
     if args.csv:
         buffer = io.StringIO()

@@ -9,11 +9,12 @@ import sys
 from collections import Counter
 from collections.abc import Callable
 from concurrent.futures import Executor, ProcessPoolExecutor
+from dataclasses import replace
 from pathlib import Path
 
 from fsmsynth.base.errors import FsmSynthError, OptionError
 from fsmsynth.cli.arguments import target_arg
-from fsmsynth.cli.printing import CAUTION
+from fsmsynth.cli.printing import CAUTION, accepted_arg
 from fsmsynth.flows.files import write_all_if_changed
 from fsmsynth.flows.project import (
     DesignOutcome,
@@ -49,10 +50,19 @@ def executor_of(args: argparse.Namespace) -> tuple[Executor | None, Callable[[],
 
 def build_all_command(args: argparse.Namespace) -> int:
     project = read_project(args.project)
+    if args.strict or args.accept:  # this run's warning options, over the project's
+        accepted = accepted_arg(args)
+        project = replace(project, specs=tuple(
+            replace(s, options=replace(s.options, strict=s.options.strict or args.strict,
+                                       accept_warnings=(*s.options.accept_warnings,
+                                                        *accepted)))
+            for s in project.specs))
     executor, close = (executor_of(args) if args.scheduler else (None, lambda: None))
 
     def line(outcome: DesignOutcome, done: int, total: int) -> None:
         print(outcome_line(outcome, done, total), flush=True)
+        for warning in outcome.warnings:
+            print(f"    warning: {warning}", flush=True)
 
     try:
         result = build_project(project, jobs=args.jobs, executor=executor, check=args.check,
@@ -73,6 +83,8 @@ def build_all_command(args: argparse.Namespace) -> int:
     if not args.check and not args.quiet:
         print()
         print(CAUTION)
+    if any(o.status == "refused" for o in result.outcomes):
+        return 2
     return 0 if result.ok else 1
 
 

@@ -3,7 +3,20 @@ mapped design."""
 
 from __future__ import annotations
 
+import argparse
+import sys
+from collections.abc import Sequence
+
+from fsmsynth.base.errors import OptionError, WarningsAsErrors
+from fsmsynth.checks.spec_warnings import (
+    SpecWarning,
+    accept_problem,
+    spec_warnings,
+    strict_message,
+    warning_lines,
+)
 from fsmsynth.flows.design import Design
+from fsmsynth.model.table import StateTable
 from fsmsynth.stages.reduce.tabulation import StateMinimization
 
 CAUTION = (
@@ -52,3 +65,27 @@ def article(title: str) -> str:
     """``a`` or ``an`` before a name read letter by letter (an SR flip-flop, a JK one)."""
     return "an" if title[:1].upper() in "AEFHILMNORSX" else "a"
 
+
+
+def accepted_arg(args: argparse.Namespace) -> tuple[str, ...]:
+    """The warnings ``--accept`` names, checked."""
+    problem = accept_problem(args.accept)
+    if problem:
+        raise OptionError(f"--accept: {problem}")
+    return tuple(args.accept)
+
+
+def run_warnings(table: StateTable, args: argparse.Namespace) -> tuple[SpecWarning, ...]:
+    """The spec's warnings less those accepted, printed on stderr; with ``--strict`` a
+    :class:`~fsmsynth.base.errors.WarningsAsErrors` (exit 2) when any are left."""
+    warnings = spec_warnings(table, accepted_arg(args))
+    if args.strict and warnings:
+        raise WarningsAsErrors(strict_message(table.name, warnings), warnings)
+    print_warnings(warnings)
+    return warnings
+
+
+def print_warnings(warnings: Sequence[SpecWarning]) -> None:
+    """The warnings, grouped, on stderr (so that a JSON report on stdout stays whole)."""
+    for line in warning_lines(warnings):
+        print(line, file=sys.stderr)

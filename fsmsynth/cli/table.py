@@ -11,9 +11,10 @@ from pathlib import Path
 
 from fsmsynth.base.errors import OptionError
 from fsmsynth.checks.invariants import check_invariants, constrain_outputs, kept_by_reduction
+from fsmsynth.checks.spec_warnings import warning_lines
 from fsmsynth.checks.table_check import check_table
 from fsmsynth.cli.arguments import encoding_arg, read_table_arg, storage_arg
-from fsmsynth.cli.printing import minimization_lines
+from fsmsynth.cli.printing import accepted_arg, minimization_lines
 from fsmsynth.flows.files import write_bytes_if_changed, write_if_changed
 from fsmsynth.flows.pipeline import synthesize
 from fsmsynth.flows.rewrite import rewrite_spec
@@ -111,9 +112,9 @@ def kmap_command(args: argparse.Namespace) -> int:
 
 def check_command(args: argparse.Namespace) -> int:
     table = read_table_arg(args)
-    report = check_table(table)
+    report = check_table(table, accepted_arg(args))
     kept = check_invariants(table)
-    status = 0 if kept else 2
+    status = 0 if kept and not (args.strict and report.warnings) else 2
     if args.json:
         broken = kept.violation
         print(json.dumps({
@@ -126,14 +127,20 @@ def check_command(args: argparse.Namespace) -> int:
                            "broken": None if broken is None else {
                                "invariant": broken.invariant, "inputs": list(broken.inputs),
                                "states": list(broken.states), "outputs": broken.outputs}},
+            "warnings": [w.as_dict() for w in report.warnings],
         }, indent=2))
         return status
     print(f"{args.spec}: valid {table.kind} table '{table.name}': {len(table.states)} states, "
           f"{len(table.inputs)} inputs, {len(table.outputs)} outputs, reset {table.reset!r}")
-    for line in report.lines():
+    for line in report.lines(besides_warnings=True):
         print(f"  note: {line}")
+    for line in warning_lines(report.warnings, word="  error" if args.strict else "  warning"):
+        print(line)
     if report.completely_specified and not report.unreachable:
         print("  every state reachable, every transition specified")
+    if args.strict and report.warnings:
+        print(f"  {len(report.warnings)} warning{'s' if len(report.warnings) > 1 else ''}, "
+              "and --strict refuses warnings")
     if table.invariants:
         print(f"  {kept.summary()}")
     return status

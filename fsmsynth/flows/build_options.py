@@ -13,6 +13,7 @@ from pathlib import Path
 
 from fsmsynth.base.errors import OptionError
 from fsmsynth.base.frozen import FrozenMap
+from fsmsynth.checks.spec_warnings import accept_problem
 from fsmsynth.flows.pipeline import OUTPUT_KINDS, UNUSED_POLICIES
 from fsmsynth.logic.cost import DEFAULT_WEIGHTS, CostWeights
 from fsmsynth.logic.cover import METHODS as LOGIC_METHODS
@@ -61,6 +62,12 @@ def option_problem(key: str, value: object) -> str | None:
                            or any(h not in HDLS for h in value)):
         shown = ",".join(value) if isinstance(value, tuple) else repr(value)
         return f"hdl {shown}: give verilog, vhdl or both"
+    elif key == "accept_warnings":
+        problem = (accept_problem(value) if isinstance(value, tuple) else
+                   f"give a list of warnings, not {value!r}")
+        return f"accept_warnings: {problem}" if problem else None
+    elif key == "strict" and not isinstance(value, bool):
+        return f"strict {value!r}: give true or false"
     elif key in ("jobs", "width") and value is not None and not _whole(value, 1):
         return f"{key} {value!r}: give a whole number of at least 1"
     elif key == "budget" and value is not None and not _whole(value, 0):
@@ -98,6 +105,8 @@ class BuildOptions:
     jobs: int = 1
     time_limit: float | None = None
     force: bool = False
+    strict: bool = False
+    accept_warnings: tuple[str, ...] = ()
     hdl: tuple[str, ...] = ("verilog",)
     testbench: bool = False
     cocotb: bool = False

@@ -10,6 +10,7 @@ from functools import cached_property
 from fsmsynth.checks.hazards import GlitchReport, glitch_report
 from fsmsynth.checks.invariants import InvariantCheck
 from fsmsynth.checks.proof import Verification
+from fsmsynth.checks.spec_warnings import SpecWarning
 from fsmsynth.logic.cost import Cost
 from fsmsynth.logic.cover import Cover
 from fsmsynth.logic.engine_lock import exclusive
@@ -98,6 +99,9 @@ class Design:
     hazard_free: tuple[str, ...] = ()
     """Outputs whose sums of products were given the consensus terms that remove static
     hazards under single-input changes."""
+    warnings: tuple[SpecWarning, ...] = ()
+    """What the spec says that its designer may not have meant
+    (:mod:`fsmsynth.checks.spec_warnings`), less the accepted ones."""
 
     @property
     def multi_bit_steps(self) -> tuple[tuple[str, str, int], ...]:

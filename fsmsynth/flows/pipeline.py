@@ -8,11 +8,17 @@ from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, replace
 from functools import partial
 
-from fsmsynth.base.errors import InvariantError, OptionError, VerificationError
+from fsmsynth.base.errors import (
+    InvariantError,
+    OptionError,
+    VerificationError,
+    WarningsAsErrors,
+)
 from fsmsynth.base.frozen import FrozenMap
 from fsmsynth.base.names import port_bits, ports_of
 from fsmsynth.checks.hazards import hazard_free
 from fsmsynth.checks.invariants import InvariantCheck, check_invariants, constrain_outputs
+from fsmsynth.checks.spec_warnings import spec_warnings, strict_message
 from fsmsynth.checks.verify import verify
 from fsmsynth.flows.design import Design
 from fsmsynth.logic.cost import DEFAULT_WEIGHTS, CostWeights, cost_of, logic_shape
@@ -62,7 +68,8 @@ def synthesize(table: StateTable, storage: StorageChoice = "d",
                force: bool = False, target: str | Target = "two-level",
                map_for: str = "area",
                outputs: str | Mapping[str, str] = "combinational",
-               unit_distance: bool = False) -> Design:
+               unit_distance: bool = False, accept_warnings: Sequence[str] = (),
+               strict: bool = False) -> Design:
     """Synthesize ``table`` into equations and a netlist, and prove the result.
 
     Parameters
@@ -131,6 +138,11 @@ def synthesize(table: StateTable, storage: StorageChoice = "d",
         its own (:mod:`fsmsynth.stages.registered`); Moore timing is kept, Mealy outputs come one
         clock later, and the netlist is verified against that (``design.reference``).
         ``design.glitches`` reports what can still glitch.
+    accept_warnings, strict:
+        ``design.warnings`` holds the spec's warnings
+        (:func:`fsmsynth.checks.spec_warnings.spec_warnings`), less those the spec or
+        ``accept_warnings`` accept (identifiers, or ``id:subject``); with ``strict`` any
+        left are a :class:`~fsmsynth.base.errors.WarningsAsErrors`, before any work.
 
     Raises
     ------
@@ -160,6 +172,9 @@ def synthesize(table: StateTable, storage: StorageChoice = "d",
     T0 = Q1'
     """
     _check_arguments(table, weights, seed, unused, clock_edge)
+    warnings = spec_warnings(table, accept_warnings)
+    if strict and warnings:
+        raise WarningsAsErrors(strict_message(table.name, warnings), warnings)
     _prove_on_table(table)
     constrained = constrain_outputs(table)
     reduction = minimize_states(constrained) if minimize else None
@@ -175,8 +190,7 @@ def synthesize(table: StateTable, storage: StorageChoice = "d",
     if clock_edge != "rising":
         chosen = replace(chosen, netlist=replace(chosen.netlist, flip_flops=tuple(
             replace(ff, edge=clock_edge) for ff in chosen.netlist.flip_flops)))
-    if search is not None:
-        chosen = replace(chosen, assignment=search)
+    chosen = replace(chosen, assignment=search, warnings=warnings)
     return _proved(chosen) if check else chosen
 
 

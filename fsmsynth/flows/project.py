@@ -22,7 +22,7 @@ from concurrent.futures import Executor, ProcessPoolExecutor
 from dataclasses import dataclass, replace
 from pathlib import Path
 
-from fsmsynth.base.errors import FsmSynthError, OutputError
+from fsmsynth.base.errors import FsmSynthError, OutputError, WarningsAsErrors
 from fsmsynth.base.frozen import FrozenMap
 from fsmsynth.flows.build_options import BuildOptions, Project, ProjectSpec
 from fsmsynth.flows.design import Design
@@ -48,7 +48,8 @@ def synthesize_with(table: StateTable, options: BuildOptions) -> Design:
                       clock_edge=options.clock_edge, jobs=options.jobs,
                       time_limit=options.time_limit, force=options.force,
                       target=options.target, map_for=options.map_for,
-                      outputs=options.outputs, unit_distance=options.unit_distance)
+                      outputs=options.outputs, unit_distance=options.unit_distance,
+                      accept_warnings=options.accept_warnings, strict=options.strict)
 
 
 def design_files(design: Design, options: BuildOptions) -> dict[str, str]:
@@ -81,6 +82,14 @@ class BuiltDesign:
     cost: float
     verified: bool
     seconds: float
+    warnings: tuple[str, ...] = ()
+
+
+@dataclass(frozen=True, slots=True)
+class Refused:
+    """A design a strict build refused for its warnings (the message lists them)."""
+
+    message: str
 
 
 @dataclass(frozen=True, slots=True)
@@ -90,8 +99,10 @@ class DesignOutcome:
     ``status`` is ``"rebuilt"`` (files written or found equal), ``"up to date"`` (nothing
     changed since the last build: not even read), ``"current"`` or ``"stale"`` (a
     ``check`` run: the files on disk are, or are not, what the spec gives now) or
-    ``"failed"`` (``error`` says why, naming the file and line, state or input at fault).
-    ``written`` names the files that were replaced.
+    ``"failed"`` (``error`` says why, naming the file and line, state or input at fault) or
+    ``"refused"`` (a strict build, and the spec has warnings: ``error`` lists them).
+    ``written`` names the files that were replaced; ``warnings`` are the spec's warnings as
+    lines (:mod:`fsmsynth.checks.spec_warnings`).
     """
 
     spec: str
@@ -105,11 +116,12 @@ class DesignOutcome:
     error: str = ""
     written: tuple[str, ...] = ()
     stale: tuple[str, ...] = ()
+    warnings: tuple[str, ...] = ()
 
     @property
     def ok(self) -> bool:
-        """Neither failed nor stale."""
-        return self.status not in ("failed", "stale")
+        """Neither failed, refused nor stale."""
+        return self.status not in ("failed", "refused", "stale")
 
 
 @dataclass(frozen=True, slots=True)
@@ -146,14 +158,17 @@ def build_one(table: StateTable, options: BuildOptions) -> BuiltDesign:
     return BuiltDesign(files=FrozenMap(files), machine=table.name,
                        states=len(design.encoded_table.states), storage=design.storage,
                        cost=design.cost.total, verified=bool(design.verification),
-                       seconds=time.perf_counter() - started)
+                       seconds=time.perf_counter() - started,
+                       warnings=tuple(w.text() for w in design.warnings))
 
 
-def _built_or_error(table: StateTable, options: BuildOptions) -> BuiltDesign | str:
+def _built_or_error(table: StateTable, options: BuildOptions) -> BuiltDesign | Refused | str:
     """:func:`build_one`, with a failure returned as its message (so that one bad design
     does not stop the others, and the message survives any executor)."""
     try:
         return build_one(table, options)
+    except WarningsAsErrors as exc:
+        return Refused(str(exc))
     except FsmSynthError as exc:
         return str(exc)
 
@@ -288,7 +303,7 @@ def build_project(project: Project, *, jobs: int | None = None,
             for i, future in each_as_done(executor, _built_or_error, calls):
                 spec, key, _table = todo[i]
                 try:
-                    result: BuiltDesign | str = future.result()
+                    result: BuiltDesign | Refused | str = future.result()
                 except Exception as exc:  # a worker lost (killed, out of memory)
                     result = f"{spec.path}: the build did not finish: {exc!r}"
                 finish(_record(spec, key, result, out, check, entries, machines))
@@ -307,17 +322,23 @@ def _from_cache(label: str, entry: Mapping[str, object]) -> DesignOutcome:
         return float(value) if isinstance(value, (int, float)) else None
 
     states = entry.get("states")
+    warnings = entry.get("warnings")
     return DesignOutcome(spec=label, status="up to date", machine=str(entry.get("machine", "")),
                          states=states if isinstance(states, int) else None,
                          storage=str(entry.get("storage", "")), cost=number("cost"),
-                         verified=bool(entry.get("verified")))
+                         verified=bool(entry.get("verified")),
+                         warnings=tuple(str(w) for w in warnings)
+                         if isinstance(warnings, list) else ())
 
 
-def _record(spec: ProjectSpec, key: str, result: BuiltDesign | str, out: Path, check: bool,
-            entries: dict[str, dict[str, object]], machines: dict[str, str]) -> DesignOutcome:
+def _record(spec: ProjectSpec, key: str, result: BuiltDesign | Refused | str, out: Path,
+            check: bool, entries: dict[str, dict[str, object]],
+            machines: dict[str, str]) -> DesignOutcome:
     """Write (or, for ``check``, compare) one design's files and its cache entry."""
     if isinstance(result, str):
         return DesignOutcome(spec=spec.label, status="failed", error=result)
+    if isinstance(result, Refused):
+        return DesignOutcome(spec=spec.label, status="refused", error=result.message)
     owner = machines.get(result.machine)
     if owner is not None and owner != spec.label:
         return DesignOutcome(spec=spec.label, status="failed", error=(
@@ -326,7 +347,8 @@ def _record(spec: ProjectSpec, key: str, result: BuiltDesign | str, out: Path, c
     machines[result.machine] = spec.label
     built = DesignOutcome(spec=spec.label, status="rebuilt", machine=result.machine,
                           states=result.states, storage=result.storage, cost=result.cost,
-                          verified=result.verified, seconds=result.seconds)
+                          verified=result.verified, seconds=result.seconds,
+                          warnings=result.warnings)
     if check:
         stale = tuple(name for name, text in result.files.items()
                       if not (out / name).is_file()
@@ -337,7 +359,7 @@ def _record(spec: ProjectSpec, key: str, result: BuiltDesign | str, out: Path, c
         entries[spec.label] = {
             "key": key, "machine": result.machine, "states": result.states,
             "storage": result.storage, "cost": result.cost, "verified": result.verified,
-            "files": {name: _digest(text.encode("utf-8"))
+            "warnings": list(result.warnings), "files": {name: _digest(text.encode("utf-8"))
                       for name, text in sorted(result.files.items())}}
         write_all_if_changed({out / CACHE_NAME: _cache_text(entries)})
     except OutputError as exc:
@@ -349,8 +371,8 @@ def outcome_line(outcome: DesignOutcome, done: int, total: int) -> str:
     """The progress line of one design."""
     width = len(str(total))
     head = f"[{done:>{width}}/{total}] {outcome.spec}: "
-    if outcome.status == "failed":
-        return head + "FAILED: " + outcome.error
+    if outcome.status in ("failed", "refused"):
+        return head + outcome.status.upper() + ": " + outcome.error
     parts = [outcome.status]
     if outcome.states is not None:
         parts.append(f"{outcome.states} states")
@@ -364,4 +386,6 @@ def outcome_line(outcome: DesignOutcome, done: int, total: int) -> str:
         parts.append(f"{outcome.seconds:.2f} s")
     if outcome.stale:
         parts.append("stale: " + ", ".join(outcome.stale))
+    if outcome.warnings:
+        parts.append(f"{len(outcome.warnings)} warning{'s' if len(outcome.warnings) > 1 else ''}")
     return head + ", ".join(parts)

@@ -25,7 +25,8 @@ targets = ["two-level", "nand2"]
 Option keys: ``storage``, ``encoding``, ``logic``, ``unused``, ``outputs``, ``minimize``,
 ``clock_edge``, ``target``, ``map_for``, ``weights`` (a weights file), ``seed``, ``budget``,
 ``width``, ``unit_distance``, ``jobs``, ``time_limit``, ``force``, ``hdl``, ``testbench``,
-``cocotb``: the options of ``fsmsynth build``, with underscores.
+``cocotb``, ``strict``, ``accept_warnings`` (a list): the options of ``fsmsynth build``, with
+underscores.
 """
 
 from __future__ import annotations
@@ -50,7 +51,8 @@ _KINDS: dict[str, tuple[type, ...]] = {
     "outputs": (str,), "minimize": (bool,), "clock_edge": (str,), "target": (str,),
     "map_for": (str,), "weights": (str,), "seed": (int,), "budget": (int,), "width": (int,),
     "unit_distance": (bool,), "jobs": (int,), "time_limit": (int, float), "force": (bool,),
-    "hdl": (str, list), "testbench": (bool,), "cocotb": (bool,),
+    "hdl": (str, list), "testbench": (bool,), "cocotb": (bool,), "strict": (bool,),
+    "accept_warnings": (list,),
 }
 SPEC_SUFFIXES = (".toml", ".csv")
 
@@ -144,6 +146,8 @@ def _spec(f: Path, defaults: Mapping[str, Any], own: Mapping[str, Any], base: Pa
                     tuple(x.strip() for x in value.split(",")) if "," in value else value)
             elif key == "encoding" and isinstance(value, dict):
                 value = FrozenMap({str(k): str(v) for k, v in value.items()})
+            elif key == "accept_warnings":
+                value = tuple(value)
             elif key == "hdl":
                 value = tuple(value) if isinstance(value, list) else tuple(
                     x.strip() for x in value.split(",") if x.strip())

@@ -8,7 +8,9 @@ Two older forms are refused by the reader, each with a message naming this comma
   row for row; with ``guards`` the rows are written as guards where that says the same
   machine (:func:`fsmsynth.writers.spec_toml.write_spec`);
 * ``from = "*"`` transitions: they move, unchanged, to ``[[every_state]]`` entries, and
-  every other key and entry is written back as it was given (comments are not kept).
+  every other key and entry is written back as it was given (comments are not kept), except
+  that a Mealy output an entry left unset, which older files left free, is written ``"-"``
+  (today an output a transition does not set is its default, or 0).
 """
 
 from __future__ import annotations
@@ -19,7 +21,7 @@ from fsmsynth.formats.spec_toml import parse_spec
 from fsmsynth.writers.spec_toml import toml_value, write_spec
 
 _TOP = ("name", "kind", "inputs", "outputs", "reset", "states", "default_outputs", "otherwise",
-        "invariants")
+        "final", "accept_warnings", "invariants")
 
 
 def rewrite_spec(text: str, path: str = "<string>", *, guards: bool = False) -> str:
@@ -35,6 +37,12 @@ def rewrite_spec(text: str, path: str = "<string>", *, guards: bool = False) -> 
     every += data.get("every_state", [])
     if "states" not in data:  # the declaration order the older reading gave, made explicit
         data["states"] = list(table.states)
+    if table.kind == "mealy":  # an output older files left unset was free: say so
+        widths = (data["outputs"] if isinstance(data["outputs"], dict)
+                  else dict.fromkeys(data["outputs"], 1))
+        free = {o: "-" * w for o, w in widths.items() if o not in data.get("default_outputs", {})}
+        for entry in [*every, *own]:
+            entry["set"] = {**free, **entry.get("set", {})}
     out = [f"# {note}"] + [f"{key} = {toml_value(data[key])}" for key in _TOP if key in data]
     for name, entries, drop in (("every_state", every, "from"), ("transition", own, None)):
         for entry in entries:
@@ -44,5 +52,6 @@ def rewrite_spec(text: str, path: str = "<string>", *, guards: bool = False) -> 
         out += ["", "[state_outputs]"] + [f"{toml_value(str(k))} = {toml_value(v)}"
                                           for k, v in data["state_outputs"].items()]
     result = "\n".join(out) + "\n"
-    assert parse_spec(result, path) == table  # the same machine, or a defect here
+    again = parse_spec(result, path)  # the same machine, meant the same way, or a defect here
+    assert again == table and again.intent == table.intent
     return result

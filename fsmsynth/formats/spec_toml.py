@@ -8,16 +8,21 @@ from __future__ import annotations
 
 import re
 import tomllib
+from dataclasses import replace
 from pathlib import Path
 from typing import Any
 
 from fsmsynth.base.errors import SpecFileError, TableError
+from fsmsynth.base.frozen import FrozenMap
+from fsmsynth.base.names import ports_of
+from fsmsynth.checks.spec_warnings import accept_problem
 from fsmsynth.formats.text_files import read_text
 from fsmsynth.language.transitions import ExactCube
 from fsmsynth.model.table import StateTable
 
 KEYS = ("name", "kind", "inputs", "outputs", "reset", "states", "state_outputs",
-        "transition", "every_state", "default_outputs", "otherwise", "invariants")
+        "transition", "every_state", "default_outputs", "otherwise", "invariants", "final",
+        "accept_warnings")
 TRANSITION_KEYS = ("from", "when", "cube", "to", "set")
 """Fields of one ``[[transition]]`` entry: present state, a guard (``when``) or an exact
 input cube (``cube``), next state (``"-"``: don't care), outputs set."""
@@ -74,8 +79,12 @@ def parse_spec(text: str, path: str = "<string>", *, legacy: bool = False) -> St
                             "holds, to the next state", path=path)
     for key in ("name", "kind", "reset", "otherwise"):
         _expect(data, key, str, path, lines)
-    for key in ("invariants", "states"):
+    for key in ("invariants", "states", "final", "accept_warnings"):
         _expect_strings(data, key, path, lines)
+    problem = accept_problem(data.get("accept_warnings", []))
+    if problem:
+        raise SpecFileError(f"accept_warnings: {problem}", path=path,
+                            line=lines.key("accept_warnings"))
     if "rows" in data:
         return _cube_rows(data, path, lines)
     return _guarded(data, path, lines, legacy)
@@ -83,7 +92,7 @@ def parse_spec(text: str, path: str = "<string>", *, legacy: bool = False) -> St
 
 def _cube_rows(data: dict[str, Any], path: str, lines: _Lines) -> StateTable:
     """The older cube-row form, read only to be rewritten."""
-    for key in ("default_outputs", "otherwise"):
+    for key in ("default_outputs", "otherwise", "final", "accept_warnings"):
         if key in data:
             raise SpecFileError(f"{key!r} belongs to the [[transition]] form; cube rows say "
                                 "it row by row", path=path, line=lines.key(key))
@@ -169,6 +178,10 @@ def _guarded(data: dict[str, Any], path: str, lines: _Lines, legacy: bool) -> St
             transitions.append((entry["from"], guard, entry["to"], outputs(entry)))
     every += [(entry["when"], entry["to"], outputs(entry))
               for entry in _entries(data, "every_state", EVERY_STATE_KEYS, path, lines)]
+    defaults = data.get("default_outputs")
+    if not moore and not legacy:  # an output a transition does not set is its default, or 0
+        ports = data["outputs"] if isinstance(data["outputs"], (dict, list)) else []
+        defaults = {**{p: 0 for p in ports if isinstance(p, str)}, **(defaults or {})}
     states = data.get("states")
     if legacy and states is None:  # older files declared states by their first mention
         named = [t[0] for t in transitions] + [t[2] for t in transitions] + [e[1] for e in every]
@@ -177,10 +190,10 @@ def _guarded(data: dict[str, Any], path: str, lines: _Lines, legacy: bool) -> St
         table = StateTable.from_transitions(
             name=data["name"], kind=data.get("kind", "mealy"), reset=data["reset"],
             inputs=data["inputs"], outputs=data["outputs"], transitions=transitions,
-            every_state=every, states=states,
-            default_outputs=data.get("default_outputs"),
-            otherwise=data.get("otherwise", "dont-care"),
-            state_outputs=data.get("state_outputs"), invariants=data.get("invariants"))
+            every_state=every, states=states, default_outputs=defaults,
+            otherwise=data.get("otherwise"),
+            state_outputs=data.get("state_outputs"), invariants=data.get("invariants"),
+            final=data.get("final", ()), accept_warnings=data.get("accept_warnings", ()))
     except TableError as exc:
         # The compiler's errors name an entry; the table's own checks name compiled rows.
         line = (lines.entry(exc.entry, exc.row) if exc.entry and exc.row is not None
@@ -189,7 +202,27 @@ def _guarded(data: dict[str, Any], path: str, lines: _Lines, legacy: bool) -> St
                             name=exc.name) from None
     if moore and not legacy:
         _moore_outputs_said(table, data, path, lines)
-    return table
+    return replace(table, intent=replace(table.intent, source=path,
+                                         lines=FrozenMap(_introduced(table, data, lines))))
+
+
+def _introduced(table: StateTable, data: dict[str, Any], lines: _Lines) -> dict[str, int]:
+    """Where the spec introduces each state (its first transition, else ``states``), input
+    and output port, for warnings."""
+    found: dict[str, int] = {}
+    for i, entry in enumerate(data.get("transition", [])):
+        line = lines.entry("transition", i)
+        if line is not None and isinstance(entry, dict):
+            found.setdefault(f"state:{entry.get('from')}", line)
+    declared = lines.key("states")
+    for state in table.states:
+        if declared is not None:
+            found.setdefault(f"state:{state}", declared)
+    for kind, key in (("input", "inputs"), ("output", "outputs")):
+        line = lines.key(key)
+        if line is not None:
+            found.update({f"{kind}:{port}": line for port, _w in ports_of(getattr(table, key))})
+    return found
 
 
 def _moore_outputs_said(table: StateTable, data: dict[str, Any], path: str,
@@ -319,6 +352,8 @@ class _Lines:
             return self.row(exc.row)
         if exc.message.startswith("kind "):
             return self.key("kind")
+        if exc.message.startswith("final "):
+            return self.key("final")
         if exc.message.startswith("state_outputs"):
             return self.section("state_outputs") or self.key("state_outputs")
         if exc.message.endswith("in states") or "must be a non-empty name" in exc.message:

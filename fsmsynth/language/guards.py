@@ -35,6 +35,7 @@ from typing import Any
 from fsmsynth.base.names import did_you_mean, port_bits, ports_of
 from fsmsynth.logic import bdd
 from fsmsynth.logic.cube import Cube
+from fsmsynth.logic.espresso import espresso_cover
 
 _TOKEN = re.compile(r"\s*(?:(?P<name>[A-Za-z_][A-Za-z0-9_$]*)|(?P<number>[0-9]+)"
                     r"|(?P<op>==|!=|<=|>=|[<>&|^~!()\[\],]))")
@@ -321,3 +322,19 @@ def guard_text(cube: Cube, inputs: Sequence[str]) -> str:
             if char != "-":
                 parts.append(name if char == "1" else f"~{name}")
     return " & ".join(parts) or "1"
+
+
+def short_guard(points: Any, free: Any, var: Sequence[Any], inputs: Sequence[str]) -> str:
+    """A short guard for ``points`` (a BDD over ``var``, one variable per 1-bit input of
+    ``inputs``): a sum of products by the Espresso heuristic (Brayton et al., *Logic
+    Minimization Algorithms for VLSI Synthesis*, 1984), free to include the points of
+    ``free`` and never any other point; each product is written by :func:`guard_text`."""
+    off = ~(points | free)
+    if off.is_zero():
+        return "1"
+    if points.is_zero():
+        return "0"
+    on_cubes, off_cubes = bdd.cubes_of(points, var), bdd.cubes_of(off, var)
+    (terms,) = espresso_cover(len(inputs), [on_cubes], [off_cubes])
+    texts = [guard_text(c, inputs) for c in terms]
+    return " | ".join(f"({t})" if "&" in t and len(texts) > 1 else t for t in texts)

@@ -8,16 +8,17 @@ state, row or input at fault.
 from __future__ import annotations
 
 from collections.abc import Iterable, Mapping, Sequence
-from dataclasses import dataclass, field
+from dataclasses import dataclass, field, replace
 from typing import Literal
 
 from fsmsynth.base.errors import TableError
 from fsmsynth.base.frozen import FrozenMap
-from fsmsynth.base.names import name_problem, ports_of, vector_problem
+from fsmsynth.base.names import did_you_mean, name_problem, ports_of, vector_problem
 from fsmsynth.language.signals import condition_problem
 from fsmsynth.language.transitions import compile_transitions
 from fsmsynth.logic.cube import Cube
 from fsmsynth.logic.engine_lock import exclusive
+from fsmsynth.model.intent import TABLE_OF_ROWS, Intent
 
 Kind = Literal["mealy", "moore"]
 Row = tuple[str, str, "str | None", "str | None"]
@@ -46,6 +47,8 @@ class StateTable:
     rows: tuple[Row, ...]
     state_outputs: Mapping[str, str] = field(default_factory=lambda: FrozenMap({}))
     invariants: tuple[str, ...] = ()
+    intent: Intent = field(default=TABLE_OF_ROWS, compare=False)
+    """How the table is meant (not part of the machine, so not of equality)."""
     _by_state: Mapping[str, tuple[int, ...]] = field(
         default_factory=lambda: FrozenMap({}), compare=False, repr=False)
 
@@ -62,6 +65,7 @@ class StateTable:
         states: Sequence[str] | None = None,
         state_outputs: Mapping[str, str] | None = None,
         invariants: Sequence[str] | None = None,
+        intent: Intent | None = None,
     ) -> StateTable:
         """Build and validate a table.
 
@@ -88,6 +92,10 @@ class StateTable:
             Conditions that must hold in every reachable state under every input, over
             inputs, outputs and the present state (:mod:`fsmsynth.checks.invariants`); checked by
             :func:`fsmsynth.checks.invariants.check_invariants` and kept by synthesis.
+        intent:
+            How the table is meant (:class:`~fsmsynth.model.intent.Intent`: final states,
+            accepted warnings); by default that of a table of rows, whose unlisted input
+            combinations are don't cares.
 
         Raises
         ------
@@ -148,6 +156,7 @@ class StateTable:
             rows=rows_t,
             state_outputs=FrozenMap(outs),
             invariants=tuple(invariants or ()),
+            intent=_checked_intent(intent, states_t),
             _by_state=FrozenMap({s: tuple(ix) for s, ix in by_state.items()}),
         )
         for pos, text in enumerate(table.invariants, start=1):
@@ -168,11 +177,13 @@ class StateTable:
         transitions: Sequence[Sequence[object]],
         kind: str = "mealy",
         default_outputs: Mapping[str, object] | None = None,
-        otherwise: str = "dont-care",
+        otherwise: str | None = None,
         state_outputs: Mapping[str, Mapping[str, object]] | None = None,
         invariants: Sequence[str] | None = None,
         every_state: Sequence[Sequence[object]] = (),
         states: Sequence[str] | None = None,
+        final: Sequence[str] = (),
+        accept_warnings: Sequence[str] = (),
     ) -> StateTable:
         """Build a table from guarded transitions, the way designers write a controller.
 
@@ -186,10 +197,13 @@ class StateTable:
         ``every_state`` are ``(guard, to, outputs)`` transitions every state takes: a
         state's transitions are tried after them, in the order written, and the first
         whose guard holds fires.  Input combinations nothing covers are unspecified
-        (``otherwise="dont-care"``) or stay in the state with the default outputs
-        (``otherwise="stay"``).  States are declared by ``states`` (every state a transition
-        names must be in it; a state may have no transitions), else in the order they
-        first appear as ``from``, then those that appear only as ``to``.
+        (``otherwise="dont-care"``, also when ``otherwise`` is not given, which the
+        ``uncovered-inputs`` warning reports) or stay in the state with the default outputs
+        (``otherwise="stay"``).  ``final`` names states meant never to be left and
+        ``accept_warnings`` the warnings accepted (:mod:`fsmsynth.checks.spec_warnings`).
+        States are declared by ``states`` (every state a transition names must be in it;
+        a state may have no transitions), else in the order they first appear as ``from``,
+        then those that appear only as ``to``.
 
         The rows of the result are the compiled cubes (disjoint, from BDDs); everything else
         is as :meth:`from_rows` builds it.  ``inputs`` and ``outputs`` are lists of 1-bit
@@ -219,13 +233,17 @@ class StateTable:
         """
         compiled = compile_transitions(kind=kind, inputs=inputs, outputs=outputs,
                                        transitions=transitions,
-                                       default_outputs=default_outputs, otherwise=otherwise,
+                                       default_outputs=default_outputs,
+                                       otherwise=otherwise or "dont-care",
                                        state_outputs=state_outputs, every_state=every_state,
                                        states=states)
         return cls.from_rows(name=name, kind=kind, inputs=compiled.inputs,
                              outputs=compiled.outputs, rows=compiled.rows, reset=reset,
                              states=compiled.states, state_outputs=compiled.state_outputs,
-                             invariants=invariants)
+                             invariants=invariants,
+                             intent=Intent(gaps_said=otherwise is not None,
+                                           final=_names(final, "final"),
+                                           accept=_names(accept_warnings, "accept_warnings")))
 
     @classmethod
     def _derived(cls, base: StateTable, *, rows: Iterable[Row], states: Sequence[str],
@@ -245,6 +263,8 @@ class StateTable:
                    states=tuple(states), reset=reset, rows=rows_t,
                    state_outputs=FrozenMap(dict(state_outputs or {})),
                    invariants=invariants,
+                   intent=replace(base.intent, final=tuple(
+                       s for s in base.intent.final if s in by_state)),
                    _by_state=FrozenMap({s: tuple(ix) for s, ix in by_state.items()}))
 
     def rows_of(self, state: str) -> tuple[Row, ...]:
@@ -275,6 +295,23 @@ class StateTable:
         if self.kind == "moore":
             return nxt, self.output_cube_of(state)
         return nxt, "".join(outs)
+
+
+def _names(given: object, what: str) -> tuple[str, ...]:
+    if isinstance(given, (str, bytes)) or not isinstance(given, Sequence) or not all(
+            isinstance(n, str) for n in given):
+        raise TableError(f"{what} must be a list of names, not {given!r}")
+    return tuple(given)
+
+
+def _checked_intent(intent: Intent | None, states: tuple[str, ...]) -> Intent:
+    if intent is None:
+        return TABLE_OF_ROWS
+    for state in intent.final:
+        if state not in states:
+            raise TableError(f"final state {state!r} is not a state"
+                             f"{did_you_mean(state, states)}", state=state)
+    return intent
 
 
 def _check_names(name: str, inputs: Sequence[str], outputs: Sequence[str]) -> None:

@@ -3,13 +3,11 @@
 from __future__ import annotations
 
 import json
-from typing import Any
 
 from fsmsynth.base.names import ports_of
-from fsmsynth.language.guards import guard_text
+from fsmsynth.language.guards import short_guard
 from fsmsynth.logic import bdd
 from fsmsynth.logic.cube import Cube
-from fsmsynth.logic.espresso import espresso_cover
 from fsmsynth.model.table import StateTable
 
 
@@ -60,12 +58,12 @@ def write_spec(table: StateTable, *, comment: str = "", guards: bool = False) ->
         fields = (f"from = {_quote(state)}, cube = {_quote(cube)}, "
                   f"to = {_quote('-' if nxt is None else nxt)}")
         if table.kind == "mealy":
-            fields += f", set = {_values(outs or '', table.outputs)}"
+            fields += f", set = {_values(outs or '', table.outputs, every=True)}"
         entries.append(f"  {{ {fields} }},")
     out += _head(table, with_states=True) + [
         "",
         "# from a state, on exactly this input cube (one 0, 1 or - per input bit), to the next",
-        "# state (\"-\": don't care), setting outputs (those not set are don't cares)",
+        "# state (\"-\": don't care), setting outputs (\"-\": free)",
         "transition = [",
         *entries,
         "]",
@@ -82,7 +80,15 @@ def _head(table: StateTable, *, with_states: bool) -> list[str]:
         f"outputs = {_ports(table.outputs)}",
         f"reset = {_quote(table.reset)}",
     ]
-    return head + ([f"states = {_array(table.states)}"] if with_states else [])
+    head += [f"states = {_array(table.states)}"] if with_states else []
+    intent = table.intent
+    if intent.gaps_said:  # what no transition covers is a don't care, on purpose
+        head.append('otherwise = "dont-care"')
+    if intent.final:
+        head.append(f"final = {_array(intent.final)}")
+    if intent.accept:
+        head.append(f"accept_warnings = {_array(intent.accept)}")
+    return head
 
 
 def _state_outputs(table: StateTable) -> list[str]:
@@ -113,7 +119,7 @@ def _key(name: str) -> str:
 
 def _values(word: str, names: tuple[str, ...], *, every: bool = False) -> str:
     """``{ fill = 1, speed = 5 }``: each output port the word specifies (ints where whole);
-    with ``every``, the free ones too, as ``"-"`` (a Moore state's outputs are said, never
+    with ``every``, the free ones too, as ``"-"`` (in a spec file outputs are said, never
     implied)."""
     parts, at = [], 0
     for port, width in ports_of(names):
@@ -124,18 +130,6 @@ def _values(word: str, names: tuple[str, ...], *, every: bool = False) -> str:
         value = str(int(chars, 2)) if "-" not in chars else _quote(chars)
         parts.append(f"{_key(port)} = {value}")
     return "{ " + ", ".join(parts) + " }" if parts else "{}"
-
-
-def _guard(points: Any, earlier: Any, var: list[Any], inputs: tuple[str, ...]) -> str:
-    """A short guard for ``points`` (a BDD): a sum of products by Espresso, free to include
-    points that ``earlier`` transitions of the state take first, never any other point."""
-    off = ~(points | earlier)
-    if off.is_zero():
-        return "1"
-    on_cubes, off_cubes = bdd.cubes_of(points, var), bdd.cubes_of(off, var)
-    (terms,) = espresso_cover(len(inputs), [on_cubes], [off_cubes])
-    texts = [guard_text(c, inputs) for c in terms]
-    return " | ".join(f"({t})" if "&" in t and len(texts) > 1 else t for t in texts)
 
 
 def _guarded(table: StateTable) -> list[str] | None:
@@ -161,11 +155,11 @@ def _guarded(table: StateTable) -> list[str] | None:
             if last and covered.is_one():
                 when = "else"
             else:
-                when = _guard(points, earlier, var, table.inputs)
+                when = short_guard(points, earlier, var, table.inputs)
             earlier |= points
             fields = f"from = {_quote(state)}, when = {_quote(when)}, to = {_quote(nxt)}"
             if table.kind == "mealy":
-                fields += f", set = {_values(outs, table.outputs)}"
+                fields += f", set = {_values(outs, table.outputs, every=True)}"
             entries.append(f"  {{ {fields} }},")
     out = _head(table, with_states=False) + [
         "",
