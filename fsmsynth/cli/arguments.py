@@ -174,8 +174,9 @@ def parser() -> argparse.ArgumentParser:
                             "against the table, driven from Python by cocotb (run it with "
                             "python <name>_cocotb.py; needs pip install fsmsynth[sim])")
     build.add_argument("--hdl", default="verilog", type=list_arg,
-                       help="which HDL files to write: verilog, vhdl or verilog,vhdl "
-                            "(default verilog)")
+                       help="which HDL files to write, comma-separated: verilog, vhdl "
+                            "(structural netlists), verilog-rtl, vhdl-rtl (readable "
+                            "register-transfer-level machines); default verilog")
     build.add_argument("--json", action="store_true", help="print a JSON report instead of text")
     build.add_argument("-q", "--quiet", action="store_true",
                        help="leave out the caution block (for build logs; the cautions still "

@@ -23,7 +23,8 @@ from fsmsynth.stages.assign.scoring import SEARCHES
 from fsmsynth.stages.encode import METHODS as ENCODE_METHODS
 from fsmsynth.stages.netlist import EDGES
 
-HDLS = ("verilog", "vhdl")
+HDLS = ("verilog", "vhdl", "verilog-rtl", "vhdl-rtl")
+"""HDL outputs by name: structural netlists, and register-transfer-level machines."""
 ENCODINGS = (*ENCODE_METHODS, *SEARCHES)
 """Every encoding by name: the direct ones and the searches."""
 CHOICES: dict[str, tuple[str, ...]] = {
@@ -61,7 +62,7 @@ def option_problem(key: str, value: object) -> str | None:
     elif key == "hdl" and (not value or not isinstance(value, tuple)
                            or any(h not in HDLS for h in value)):
         shown = ",".join(value) if isinstance(value, tuple) else repr(value)
-        return f"hdl {shown}: give verilog, vhdl or both"
+        return f"hdl {shown}: give one or more of {', '.join(HDLS)}"
     elif key == "accept_warnings":
         problem = (accept_problem(value) if isinstance(value, tuple) else
                    f"give a list of warnings, not {value!r}")

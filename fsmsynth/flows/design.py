@@ -3,12 +3,12 @@ inspection, with the netlist's HDL and JSON texts derived on demand."""
 
 from __future__ import annotations
 
-from collections.abc import Mapping
+from collections.abc import Callable, Mapping
 from dataclasses import dataclass
 from functools import cached_property
 
 from fsmsynth.checks.hazards import GlitchReport, glitch_report
-from fsmsynth.checks.invariants import InvariantCheck
+from fsmsynth.checks.invariants import InvariantCheck, constrain_outputs
 from fsmsynth.checks.proof import Verification
 from fsmsynth.checks.spec_warnings import SpecWarning
 from fsmsynth.logic.cost import Cost
@@ -30,6 +30,11 @@ from fsmsynth.stages.netlist import Netlist
 from fsmsynth.stages.reduce.tabulation import StateMinimization
 from fsmsynth.stages.registered import delayed_machine
 from fsmsynth.writers.json_netlist import write_json_netlist
+from fsmsynth.writers.rtl_machine import RtlMachine, rtl_machine
+from fsmsynth.writers.rtl_verilog import assertion_lines as verilog_assertions
+from fsmsynth.writers.rtl_verilog import write_rtl_verilog
+from fsmsynth.writers.rtl_vhdl import assertion_lines as vhdl_assertions
+from fsmsynth.writers.rtl_vhdl import write_rtl_vhdl
 from fsmsynth.writers.verilog import write_verilog
 from fsmsynth.writers.vhdl import write_vhdl
 
@@ -130,13 +135,65 @@ class Design:
     @cached_property
     def verilog(self) -> str:
         """Structural Verilog of the netlist."""
-        return write_verilog(self.netlist, header=self.header())
+        return write_verilog(self.netlist, header=self.header(),
+                             checks=verilog_assertions(self.rtl, *self._state_bits("verilog")))
 
     @cached_property
     def vhdl(self) -> str:
         """Structural VHDL (IEEE 1076-2008) of the netlist; names VHDL cannot take are a
         :class:`~fsmsynth.base.errors.TableError` naming them."""
-        return write_vhdl(self.netlist, header=self.header())
+        return write_vhdl(self.netlist, header=self.header(),
+                          checks=vhdl_assertions(self.rtl, *self._state_bits("vhdl")))
+
+    def _state_bits(self, hdl: str) -> tuple[str, Callable[[str], str]]:
+        """The present state code of the netlist (its state flip-flops, most significant
+        first) and each state's code, as ``hdl`` writes them, for the assertions."""
+        m = self.rtl
+        width = self.encoding.width - (len(self.table.outputs) if self.registered else 0)
+        nets = [ff.q for ff in self.netlist.flip_flops[:width]][::-1]  # bit 0 first
+        codes = {s.name: format(s.code, f"0{m.width}b")[m.width - width:] for s in m.states}
+        if hdl == "verilog":
+            return "{" + ", ".join(nets) + "}", lambda s: f"{len(nets)}'b{codes[s]}"
+        if len(nets) == 1:
+            return nets[0], lambda s: f"'{codes[s]}'"
+        return (f"std_logic_vector'({' & '.join(nets)})", lambda s: f'"{codes[s]}"')
+
+    @cached_property
+    @exclusive
+    def rtl(self) -> RtlMachine:
+        """The machine as register-transfer-level HDL describes it
+        (:mod:`fsmsynth.writers.rtl_machine`): the encoded states with their codes, whatever
+        the storage kind or target."""
+        base = (self.minimization.table if self.minimization
+                else constrain_outputs(self.table))
+        codes = dict(self.encoding.codes)
+        width = self.encoding.width
+        if self.registered is not None:  # the output bits sit above the state's own code
+            width -= len(self.table.outputs)
+            mask = (1 << width) - 1
+            own = {name.rsplit("/", 1)[0] if self.table.kind == "mealy" else name: code & mask
+                   for name, code in reversed(list(codes.items()))}
+            free = (c for c in range(1 << max(width, 1)) if c not in own.values())
+            codes = {s: own[s] if s in own else next(free) for s in base.states}
+        return rtl_machine(base, codes, width, method=self.encoding.method.split(",")[0],
+                           unused=self.unused, registered=self.registered is not None,
+                           edge=self.netlist.flip_flops[0].edge if self.netlist.flip_flops
+                           else "rising", spec=self.table,
+                           members={r: tuple(sorted(m)) for r, m in
+                                    self.minimization.classes.items()}
+                           if self.minimization else None)
+
+    @cached_property
+    def rtl_verilog(self) -> str:
+        """Register-transfer-level Verilog (IEEE 1364-2005) of the machine: same module name
+        and ports as :attr:`verilog` (:mod:`fsmsynth.writers.rtl_verilog`)."""
+        return write_rtl_verilog(self.rtl, header=self.header())
+
+    @cached_property
+    def rtl_vhdl(self) -> str:
+        """Register-transfer-level VHDL (IEEE 1076-2008) of the machine: same entity as
+        :attr:`vhdl` (:mod:`fsmsynth.writers.rtl_vhdl`)."""
+        return write_rtl_vhdl(self.rtl, header=self.header())
 
     @cached_property
     def json(self) -> str:

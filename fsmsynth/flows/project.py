@@ -61,10 +61,14 @@ def design_files(design: Design, options: BuildOptions) -> dict[str, str]:
         files[f"{name}.v"] = design.verilog
     if "vhdl" in options.hdl:
         files[f"{name}.vhd"] = design.vhdl
+    if "verilog-rtl" in options.hdl:
+        files[f"{name}_rtl.v"] = design.rtl_verilog
+    if "vhdl-rtl" in options.hdl:
+        files[f"{name}_rtl.vhd"] = design.rtl_vhdl
     files[f"{name}.json"] = design.json
-    if options.testbench and "verilog" in options.hdl:
+    if options.testbench and {"verilog", "verilog-rtl"} & set(options.hdl):
         files[f"{name}_tb.v"] = write_testbench(design.reference)
-    if options.testbench and "vhdl" in options.hdl:
+    if options.testbench and {"vhdl", "vhdl-rtl"} & set(options.hdl):
         files[f"{name}_tb.vhd"] = write_vhdl_testbench(design.reference)
     if options.cocotb:
         files[f"{name}_cocotb.py"] = write_cocotb_bench(design.reference)

@@ -324,17 +324,26 @@ def guard_text(cube: Cube, inputs: Sequence[str]) -> str:
     return " & ".join(parts) or "1"
 
 
-def short_guard(points: Any, free: Any, var: Sequence[Any], inputs: Sequence[str]) -> str:
-    """A short guard for ``points`` (a BDD over ``var``, one variable per 1-bit input of
-    ``inputs``): a sum of products by the Espresso heuristic (Brayton et al., *Logic
-    Minimization Algorithms for VLSI Synthesis*, 1984), free to include the points of
-    ``free`` and never any other point; each product is written by :func:`guard_text`."""
+def short_cover(points: Any, free: Any, var: Sequence[Any], n: int) -> list[Cube]:
+    """A short sum of products for ``points`` (a BDD over the ``n`` variables ``var``) by the
+    Espresso heuristic (Brayton et al., *Logic Minimization Algorithms for VLSI Synthesis*,
+    1984), free to include the points of ``free`` and never any other point: ``[]`` when
+    ``points`` is empty, one empty cube when the cover is everything."""
+    if points.is_zero():
+        return []
     off = ~(points | free)
     if off.is_zero():
-        return "1"
-    if points.is_zero():
-        return "0"
+        return [Cube.universe()]
     on_cubes, off_cubes = bdd.cubes_of(points, var), bdd.cubes_of(off, var)
-    (terms,) = espresso_cover(len(inputs), [on_cubes], [off_cubes])
+    (terms,) = espresso_cover(n, [on_cubes], [off_cubes])
+    return list(terms)
+
+
+def short_guard(points: Any, free: Any, var: Sequence[Any], inputs: Sequence[str]) -> str:
+    """:func:`short_cover` of ``points`` over a table's 1-bit ``inputs``, written as a guard
+    (each product by :func:`guard_text`; ``0`` for no point)."""
+    terms = short_cover(points, free, var, len(inputs))
+    if not terms:
+        return "0"
     texts = [guard_text(c, inputs) for c in terms]
     return " | ".join(f"({t})" if "&" in t and len(texts) > 1 else t for t in texts)

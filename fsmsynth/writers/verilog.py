@@ -10,6 +10,8 @@ pragma with a comment saying why.
 
 from __future__ import annotations
 
+from collections.abc import Sequence
+
 from fsmsynth.base.names import RESERVED_PREFIX, ports_of, split_bit
 from fsmsynth.model.storage import Storage
 from fsmsynth.stages.netlist import FlipFlop, Gate, Netlist
@@ -23,7 +25,8 @@ def cell_module_name(storage: Storage, edge: str = "rising") -> str:
     return f"{RESERVED_PREFIX}{storage.name}_ff{'' if edge == 'rising' else '_neg'}"
 
 
-def write_verilog(netlist: Netlist, *, header: str = "") -> str:
+def write_verilog(netlist: Netlist, *, header: str = "",
+                  checks: Sequence[str] = ()) -> str:
     """Structural Verilog text of ``netlist``.
 
     Parameters
@@ -32,6 +35,9 @@ def write_verilog(netlist: Netlist, *, header: str = "") -> str:
         The circuit.
     header:
         Extra comment lines (without ``//``) placed after the generated-file notice.
+    checks:
+        Lines placed at the end of the module: the invariants' assertions
+        (:func:`fsmsynth.writers.rtl_verilog.assertion_lines`).
     """
     read = netlist.nets_read()
     ports = {netlist.clock, netlist.reset, *netlist.inputs, *(p for p, _n in netlist.outputs)}
@@ -88,6 +94,7 @@ def write_verilog(netlist: Netlist, *, header: str = "") -> str:
     for port, net in netlist.outputs:
         if net != port:
             lines.append(f"    assign {port} = {net};")
+    lines += [f"    {x}" if x else "" for x in checks]
     lines += ["endmodule", ""]
 
     kinds = sorted({(ff.storage.name, ff.edge): ff.storage for ff in netlist.flip_flops}.items())

@@ -85,7 +85,8 @@ def _header(comment: str) -> list[str]:
     return lines
 
 
-def _port_lines(table_inputs: Sequence[str], table_outputs: Sequence[str]) -> list[str]:
+def port_lines(table_inputs: Sequence[str], table_outputs: Sequence[str]) -> list[str]:
+    """The entity's port lines: ``clk``, ``rst``, the inputs, then the outputs."""
     decls = ["clk : in std_logic", "rst : in std_logic"]
     for direction, names in (("in", table_inputs), ("out", table_outputs)):
         for port, width in ports_of(names):
@@ -131,8 +132,10 @@ def _next(storage: Storage, pins: dict[str, str], q: str) -> str:
     return " or ".join(parts)
 
 
-def write_vhdl(netlist: Netlist, *, header: str = "") -> str:
-    """VHDL text of ``netlist`` (see the module docstring).
+def write_vhdl(netlist: Netlist, *, header: str = "", checks: Sequence[str] = ()) -> str:
+    """VHDL text of ``netlist`` (see the module docstring); ``checks`` are lines placed at
+    the end of the architecture (the invariants' assertions,
+    :func:`fsmsynth.writers.rtl_vhdl.assertion_lines`).
 
     Raises
     ------
@@ -144,7 +147,7 @@ def write_vhdl(netlist: Netlist, *, header: str = "") -> str:
     ports = set(netlist.inputs) | set(outputs)
     lines = _header(header) + [
         "library ieee;", "use ieee.std_logic_1164.all;", "use ieee.numeric_std.all;", "",
-        f"entity {netlist.name} is", "  port (", *_port_lines(netlist.inputs, outputs),
+        f"entity {netlist.name} is", "  port (", *port_lines(netlist.inputs, outputs),
         "  );", f"end entity {netlist.name};", "",
         f"architecture structural of {netlist.name} is"]
     internal = [ff.q for ff in netlist.flip_flops] + [g.output for g in netlist.gates
@@ -174,6 +177,7 @@ def write_vhdl(netlist: Netlist, *, header: str = "") -> str:
     lines.append("")
     lines += [f"  {_net(port)} <= {_net(net)};" for port, net in netlist.outputs
               if net != port]
+    lines += [f"  {x}" if x else "" for x in checks]
     lines += ["end architecture structural;", ""]
     return "\n".join(lines)
 

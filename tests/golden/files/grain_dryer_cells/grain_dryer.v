@@ -127,6 +127,28 @@ module grain_dryer (
     assign auger[1] = fs_m98;
     assign auger[0] = fs_m71;
     assign alarm = fs_m84;
+
+    `ifndef SYNTHESIS
+    /* verilator lint_off SYNCASYNCNET */  // rst: asynchronous in the registers, a plain condition here
+    // Invariants of the spec, checked at every clock edge out of reset (left out of synthesis).
+    // invariant 1: ~(burner & ~fan)
+    always @(posedge clk)
+        if (!rst && !((~burner | fan)))
+            $error("invariant 1 broken: ~(burner & ~fan)");
+    // invariant 2: ~(burner & door_open)
+    always @(posedge clk)
+        if (!rst && !((~door_open | ~burner)))
+            $error("invariant 2 broken: ~(burner & door_open)");
+    // invariant 3: state != purge | ~burner
+    always @(posedge clk)
+        if (!rst && !(({fs_q2, fs_q1, fs_q0} != 3'b001 || (~burner))))
+            $error("invariant 3 broken: state != purge | ~burner");
+    // invariant 4: ~alarm | auger == 0
+    always @(posedge clk)
+        if (!rst && !(((auger == 2'd0) | ~alarm)))
+            $error("invariant 4 broken: ~alarm | auger == 0");
+    /* verilator lint_on SYNCASYNCNET */
+    `endif
 endmodule
 
 // D flip-flop: Q+ = D; rising edge, asynchronous active-high reset (clear, or set when RESET_VALUE is 1).

@@ -146,4 +146,40 @@ begin
   auger(1) <= fs_m98;
   auger(0) <= fs_m71;
   alarm <= fs_m84;
+
+  -- Invariants of the spec, checked at every clock edge out of reset.
+  -- pragma translate_off
+  -- invariant 1: ~(burner & ~fan)
+  invariant_1 : process (clk)
+  begin
+    if rising_edge(clk) and rst = '0' then
+      assert (burner = '0' or fan = '1')
+        report "invariant 1 broken: ~(burner & ~fan)" severity error;
+    end if;
+  end process;
+  -- invariant 2: ~(burner & door_open)
+  invariant_2 : process (clk)
+  begin
+    if rising_edge(clk) and rst = '0' then
+      assert (door_open = '0' or burner = '0')
+        report "invariant 2 broken: ~(burner & door_open)" severity error;
+    end if;
+  end process;
+  -- invariant 3: state != purge | ~burner
+  invariant_3 : process (clk)
+  begin
+    if rising_edge(clk) and rst = '0' then
+      assert (std_logic_vector'(fs_q2 & fs_q1 & fs_q0) /= "001" or (burner = '0'))
+        report "invariant 3 broken: state != purge | ~burner" severity error;
+    end if;
+  end process;
+  -- invariant 4: ~alarm | auger == 0
+  invariant_4 : process (clk)
+  begin
+    if rising_edge(clk) and rst = '0' then
+      assert (auger = "00" or alarm = '0')
+        report "invariant 4 broken: ~alarm | auger == 0" severity error;
+    end if;
+  end process;
+  -- pragma translate_on
 end architecture structural;

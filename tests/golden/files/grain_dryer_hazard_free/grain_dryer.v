@@ -91,6 +91,28 @@ module grain_dryer (
     fs_jk_ff #(.RESET_VALUE(1'b0)) fs_ff1 (.clk(clk), .rst(rst), .j(fs_p4), .k(fs_k1), .q(fs_q1));
     fs_jk_ff #(.RESET_VALUE(1'b0)) fs_ff2 (.clk(clk), .rst(rst), .j(fs_j2), .k(fs_p1), .q(fs_q2));
     assign auger[0] = burner;
+
+    `ifndef SYNTHESIS
+    /* verilator lint_off SYNCASYNCNET */  // rst: asynchronous in the registers, a plain condition here
+    // Invariants of the spec, checked at every clock edge out of reset (left out of synthesis).
+    // invariant 1: ~(burner & ~fan)
+    always @(posedge clk)
+        if (!rst && !((~burner | fan)))
+            $error("invariant 1 broken: ~(burner & ~fan)");
+    // invariant 2: ~(burner & door_open)
+    always @(posedge clk)
+        if (!rst && !((~door_open | ~burner)))
+            $error("invariant 2 broken: ~(burner & door_open)");
+    // invariant 3: state != purge | ~burner
+    always @(posedge clk)
+        if (!rst && !(({fs_q2, fs_q1, fs_q0} != 3'b001 || (~burner))))
+            $error("invariant 3 broken: state != purge | ~burner");
+    // invariant 4: ~alarm | auger == 0
+    always @(posedge clk)
+        if (!rst && !(((auger == 2'd0) | ~alarm)))
+            $error("invariant 4 broken: ~alarm | auger == 0");
+    /* verilator lint_on SYNCASYNCNET */
+    `endif
 endmodule
 
 // JK flip-flop: Q+ = J Q' + K' Q; rising edge, asynchronous active-high reset (clear, or set when RESET_VALUE is 1).

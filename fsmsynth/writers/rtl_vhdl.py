@@ -1,0 +1,185 @@
+"""Register-transfer-level VHDL (IEEE 1076-2008) of a machine, the counterpart of
+:mod:`fsmsynth.writers.rtl_verilog`.
+
+The entity is the structural one's (:mod:`fsmsynth.writers.vhdl`), so the same testbench
+drives either.  The states are an enumerated type whose codes are given by the
+``enum_encoding`` attribute (read by synthesis tools) and listed in a comment; one clocked
+process holds the state register (and registered outputs), one combinational process
+(``process (all)``) assigns the outputs' defaults first and then a ``case`` over the state.
+With an enumeration every value is a state, so the unused-code policy belongs to the
+netlist; the ``when others`` branch says what it does.  Each invariant is an ``assert`` in
+a clocked process between ``pragma translate_off``/``translate_on`` comments.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable
+
+from fsmsynth.base.names import ports_of
+from fsmsynth.logic.cube import Cube
+from fsmsynth.version import __version__
+from fsmsynth.writers.rtl_machine import RtlMachine, RtlState
+from fsmsynth.writers.rtl_verilog import held_conditions, state_constant
+from fsmsynth.writers.vhdl import check_vhdl_names, port_lines
+
+
+def _literals(cube: Cube, signals: tuple[str, ...]) -> list[str]:
+    parts, at = [], 0
+    for port, width in ports_of(signals):
+        n = width or 1
+        chars = [cube.literal_char(at + k) for k in range(n)]
+        at += n
+        if width is not None and "-" not in chars:
+            parts.append(f'{port} = "{"".join(chars)}"')
+            continue
+        for k, char in enumerate(chars):
+            name = port if width is None else f"{port}({width - 1 - k})"
+            if char != "-":
+                parts.append(f"{name} = '{char}'")
+    return parts
+
+
+def expression(terms: tuple[Cube, ...], signals: tuple[str, ...]) -> str:
+    """A sum of products as a VHDL condition (``true`` for the empty product)."""
+    products = [_literals(c, signals) for c in terms]
+    if not products:
+        return "false"
+    texts = [" and ".join(lits) or "true" for lits in products]
+    return " or ".join(f"({t})" if " and " in t and len(texts) > 1 else t for t in texts)
+
+
+def _value(bits: str, width: int | None) -> str:
+    return f"'{bits}'" if width is None else f'"{bits}"'
+
+
+def _assignments(word: str, outputs: tuple[str, ...], suffix: str) -> list[str]:
+    out, at = [], 0
+    for port, width in ports_of(outputs):
+        n = width or 1
+        bits = word[at:at + n]
+        at += n
+        if "1" in bits:
+            out.append(f"{port}{suffix} <= {_value(bits, width)};")
+    return out
+
+
+def _state_case(m: RtlMachine, state: RtlState, suffix: str, moore_words: bool) -> list[str]:
+    where = f" (spec line {state.line})" if state.line else ""
+    body = (_assignments(state.word, m.outputs, suffix)
+            if state.word and moore_words else [])
+    chain = state.branches
+    for k, branch in enumerate(chain):
+        inner = [f"state_next <= {state_constant(branch.to)};"]
+        inner += _assignments(branch.word, m.outputs, suffix) if branch.word else []
+        if state.last_is_else and len(chain) == 1:
+            body += inner
+            break
+        last_else = state.last_is_else and k == len(chain) - 1
+        body.append("else" if last_else else
+                    f"{'elsif' if k else 'if'} {expression(branch.terms, m.inputs)} then")
+        body += [f"  {x}" for x in inner]
+        if k == len(chain) - 1:
+            body.append("end if;")
+    return ([f"when {state_constant(state.name)} =>  -- {state.name}{where}"]
+            + [f"  {x}" for x in body or ["null;  -- stays"]])
+
+
+def _logic(m: RtlMachine, suffix: str) -> list[str]:
+    lines = ["logic : process (all)", "begin",
+             "  state_next <= state;  -- an open next state stays"]
+    lines += [f"  {p}{suffix} <= {_value('0' * (w or 1), w)};" for p, w in ports_of(m.outputs)]
+    lines.append("  case state is")
+    moore_words = not (m.registered and m.kind == "moore")
+    for state in m.states:
+        lines += [f"    {x}" for x in _state_case(m, state, suffix, moore_words)]
+    policy = ("unused codes go to reset (unused = \"safe\"), in the netlist"
+              if m.unused_safe else "unused codes are don't cares (unused = \"dont-care\")")
+    lines += [f"    when others =>  -- every value is a state; {policy}",
+              f"      state_next <= {state_constant(m.reset)};", "  end case;"]
+    if not moore_words:
+        lines.append("  case state_next is  -- registered Moore outputs: those of the next state")
+        for state in m.states:
+            assert state.word is not None
+            body = _assignments(state.word, m.outputs, "_d")
+            lines.append(f"    when {state_constant(state.name)} => "
+                         + (" ".join(body) if body else "null;"))
+        lines += ["    when others => null;", "  end case;"]
+    return lines + ["end process;"]
+
+
+def _registers(m: RtlMachine) -> list[str]:
+    clock = "rising_edge(clk)" if m.edge == "rising" else "falling_edge(clk)"
+    on_reset = [f"state <= {state_constant(m.reset)};"]
+    on_edge = ["state <= state_next;"]
+    if m.registered:
+        word, at = m.reset_word(), 0
+        for port, width in ports_of(m.outputs):
+            n = width or 1
+            on_reset.append(f"{port} <= {_value(word[at:at + n], width)};")
+            on_edge.append(f"{port} <= {port}_d;")
+            at += n
+    what = "State register" + (" and output registers" if m.registered else "")
+    return [f"-- {what}: {m.edge} edge, asynchronous active-high reset to {m.reset}.",
+            "registers : process (clk, rst)", "begin", "  if rst = '1' then",
+            *(f"    {x}" for x in on_reset), f"  elsif {clock} then",
+            *(f"    {x}" for x in on_edge), "  end if;", "end process;"]
+
+
+def assertion_lines(m: RtlMachine, state: str = "state",
+                    code: Callable[[str], str] = state_constant) -> list[str]:
+    """Each invariant as an ``assert`` in a clocked process, out of reset, between
+    ``pragma translate_off``/``translate_on``; ``state`` and ``code`` as for
+    :func:`fsmsynth.writers.rtl_verilog.assertion_lines`."""
+    signals = (*m.inputs, *m.outputs)
+    lines: list[str] = []
+    clock = "rising_edge(clk)" if m.edge == "rising" else "falling_edge(clk)"
+    for inv in m.invariants:
+        held = held_conditions(inv, signals, lambda s: f"{state} /= {code(s)}",
+                               expression, " or ")
+        if not held:
+            continue
+        text = inv.text.replace('"', "'")
+        lines += [f"-- invariant {inv.number}: {inv.text}",
+                  f"invariant_{inv.number} : process (clk)", "begin",
+                  f"  if {clock} and rst = '0' then",
+                  f"    assert {' and '.join(held)}",
+                  f"      report \"invariant {inv.number} broken: {text}\" severity error;",
+                  "  end if;", "end process;"]
+    if not lines:
+        return []
+    return ["", "-- Invariants of the spec, checked at every clock edge out of reset.",
+            "-- pragma translate_off", *lines, "-- pragma translate_on"]
+
+
+def write_rtl_vhdl(m: RtlMachine, *, header: str = "") -> str:
+    """The RTL VHDL text of ``m``; names VHDL cannot take are refused as for the
+    structural VHDL."""
+    check_vhdl_names(m.name, m.inputs, m.outputs)
+    suffix = "_d" if m.registered else ""
+    codes = " ".join(f"{s.code:0{m.width}b}" for s in m.states)
+    lines = [f"-- generated by fsmsynth {__version__}; do not edit, regenerate it from the "
+             "specification.",
+             "-- Register-transfer-level VHDL, IEEE 1076-2008: the machine state by state (the "
+             "structural netlist implements it).",
+             *(f"-- {h}" for h in header.splitlines()),
+             "library ieee;", "use ieee.std_logic_1164.all;", "",
+             f"entity {m.name} is", "  port (", *port_lines(m.inputs, m.outputs), "  );",
+             f"end entity {m.name};", "", f"architecture rtl of {m.name} is",
+             f"  -- States and their codes ({m.method} encoding): "
+             + ", ".join(f"{s.name}={s.code:0{m.width}b}" for s in m.states) + ".",
+             "  type state_type is ("
+             + ", ".join(state_constant(s.name) for s in m.states) + ");",
+             "  attribute enum_encoding : string;",
+             f"  attribute enum_encoding of state_type : type is \"{codes}\";",
+             "  signal state, state_next : state_type;"]
+    if m.registered:
+        lines += [f"  signal {p}_d : "
+                  + ("std_logic" if w is None else f"std_logic_vector({w - 1} downto 0)") + ";"
+                  for p, w in ports_of(m.outputs)]
+    lines.append("begin")
+    lines += [f"  {x}" for x in _registers(m)] + [""]
+    lines += ["  -- Next state and outputs: the defaults, then what each state says."]
+    lines += [f"  {x}" for x in _logic(m, suffix)]
+    lines += [f"  {x}" if x else "" for x in assertion_lines(m)]
+    lines += ["end architecture rtl;"]
+    return "\n".join(lines) + "\n"
