@@ -8,7 +8,7 @@ outputs and primary inputs are driven from the start).
 from __future__ import annotations
 
 from collections.abc import Sequence
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 from fsmsynth.base.errors import NetlistError
 from fsmsynth.base.names import RESERVED_PREFIX, split_bit
@@ -254,6 +254,21 @@ def state_net(bit: int) -> str:
     return f"{RESERVED_PREFIX}q{bit}"
 
 
+def _plain(signal: str) -> str:
+    """A signal as part of a net name: ``d0`` for the pin ``D0``, ``level_1`` for the vector
+    bit ``level[1]``."""
+    bit = split_bit(signal)
+    text = signal if bit is None else f"{bit[0]}_{bit[1]}"
+    return text.lower() if signal[:1].isupper() and signal[1:].isdigit() else text
+
+
+def gate_name(net: str) -> str:
+    """The gate driving ``net``, named after it: ``fs_g_d0_p2``, ``fs_g_fan``."""
+    bit = split_bit(net)
+    base = net if bit is None else f"{bit[0]}_{bit[1]}"
+    return f"{RESERVED_PREFIX}g_{base.removeprefix(RESERVED_PREFIX)}"
+
+
 def build_netlist(name: str, inputs: Sequence[str], outputs: Sequence[str], cover: Cover,
                   storages: Sequence[Storage], reset_code: int, edge: str = "rising") -> Netlist:
     """Build gates and flip-flops for a cover.
@@ -261,6 +276,10 @@ def build_netlist(name: str, inputs: Sequence[str], outputs: Sequence[str], cove
     Follows the structural rules of :mod:`fsmsynth.logic.cost`: one inverter per complemented
     variable, one AND gate per distinct product of two or more literals, one OR gate per
     distinct sum of two or more products, wires for single literals and single products.
+    Nets say what they carry: ``fs_q1`` and ``fs_nq1`` a state bit and its complement,
+    ``fs_n_start`` a complemented input, ``fs_d0_p2`` the second product of ``D0`` as the
+    equations print it, ``fs_d0`` the sum driving pin ``D0``; each gate is named after its
+    output (``fs_g_d0_p2``).
 
     Parameters
     ----------
@@ -282,8 +301,7 @@ def build_netlist(name: str, inputs: Sequence[str], outputs: Sequence[str], cove
     gates: list[Gate] = []
 
     def new_gate(kind: str, ins: tuple[str, ...], out: str) -> None:
-        gates.append(Gate(name=f"{RESERVED_PREFIX}g{len(gates)}", kind=kind, inputs=ins,
-                          output=out))
+        gates.append(Gate(name=gate_name(out), kind=kind, inputs=ins, output=out))
 
     normal = [normal_terms(t) for t in cover.terms]
     live = [t for t in normal if t != (Cube.universe(),)]
@@ -294,18 +312,20 @@ def build_netlist(name: str, inputs: Sequence[str], outputs: Sequence[str], cove
     def literal_net(v: int, positive: bool) -> str:
         return var_nets[v] if positive else inverted_nets[v]
 
+    # A product's net is named after the first equation that prints it and its place there
+    # (fs_d0_p2: the second product of D0), so the netlist reads beside the equations.
     term_net: dict[Cube, str] = {}
-    products: list[Cube] = []
-    for terms in live:
-        for t in terms:
+    for signal, terms in zip(cover.names, normal):
+        if terms == (Cube.universe(),):
+            continue
+        for k, t in enumerate(sorted(terms, key=lambda c: tuple(c.literals())), start=1):
             if t in term_net:
                 continue
             lits = tuple(literal_net(v, p) for v, p in t.literals())
             if len(lits) == 1:
                 term_net[t] = lits[0]
             else:
-                term_net[t] = f"{RESERVED_PREFIX}p{len(products)}"
-                products.append(t)
+                term_net[t] = f"{RESERVED_PREFIX}{_plain(signal)}_p{k}"
                 new_gate("and", lits, term_net[t])
 
     pin_names = {f"{pin}{b}": (b, pin) for b, s in enumerate(storages) for pin in s.pins}
@@ -330,6 +350,15 @@ def build_netlist(name: str, inputs: Sequence[str], outputs: Sequence[str], cove
                  pins=tuple((pin, signal_net[f"{pin}{b}"]) for pin in s.pins),
                  q=state_net(b), reset_value=reset_code >> b & 1, edge=edge)
         for b, s in enumerate(storages))
+    nets = {g.output for g in gates} | set(inputs) | {ff.q for ff in flip_flops}
+    taken: set[str] = set()
+    for i, g in enumerate(gates):  # a gate's name may not be a net's (one Verilog scope)
+        unique, n = g.name, 1
+        while unique in nets or unique in taken:
+            unique, n = f"{g.name}_{n}", n + 1
+        taken.add(unique)
+        if unique != g.name:
+            gates[i] = replace(g, name=unique)
     return Netlist(name=name, inputs=tuple(inputs),
                    outputs=tuple((o, signal_net[o]) for o in outputs),
                    gates=tuple(gates), flip_flops=flip_flops)

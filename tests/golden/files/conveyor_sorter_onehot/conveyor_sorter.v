@@ -18,21 +18,21 @@ module conveyor_sorter (
     wire fs_nq1;
     wire fs_n_parcel;
     wire fs_n_bad_label;
-    wire fs_p0;
-    wire fs_p1;
+    wire fs_d1_p1;
+    wire fs_count_p1;
     wire fs_d0;
 
-    not  fs_g0 (fs_nq0, fs_q0);
-    not  fs_g1 (fs_nq1, fs_q1);
-    not  fs_g2 (fs_n_parcel, parcel);
-    not  fs_g3 (fs_n_bad_label, bad_label);
-    and  fs_g4 (fs_p0, fs_q0, fs_nq1, parcel, bad_label);
-    and  fs_g5 (fs_p1, fs_nq1, parcel);
-    or   fs_g6 (fs_d0, fs_nq0, fs_q1, fs_n_parcel, fs_n_bad_label);
+    not  fs_g_nq0 (fs_nq0, fs_q0);
+    not  fs_g_nq1 (fs_nq1, fs_q1);
+    not  fs_g_n_parcel (fs_n_parcel, parcel);
+    not  fs_g_n_bad_label (fs_n_bad_label, bad_label);
+    and  fs_g_d1_p1 (fs_d1_p1, fs_q0, fs_nq1, parcel, bad_label);
+    and  fs_g_count_p1 (fs_count_p1, fs_nq1, parcel);
+    or   fs_g_d0 (fs_d0, fs_nq0, fs_q1, fs_n_parcel, fs_n_bad_label);
     fs_d_ff #(.RESET_VALUE(1'b1)) fs_ff0 (.clk(clk), .rst(rst), .d(fs_d0), .q(fs_q0));
-    fs_d_ff #(.RESET_VALUE(1'b0)) fs_ff1 (.clk(clk), .rst(rst), .d(fs_p0), .q(fs_q1));
+    fs_d_ff #(.RESET_VALUE(1'b0)) fs_ff1 (.clk(clk), .rst(rst), .d(fs_d1_p1), .q(fs_q1));
     assign flap = fs_nq0;
-    assign count = fs_p1;
+    assign count = fs_count_p1;
 endmodule
 
 // D flip-flop: Q+ = D; rising edge, asynchronous active-high reset (clear, or set when RESET_VALUE is 1).

@@ -25,14 +25,14 @@ architecture structural of greenhouse_vent is
   signal fs_nq1 : std_logic;
   signal fs_n_too_hot : std_logic;
   signal fs_n_wind_strong : std_logic;
-  signal fs_p0 : std_logic;
-  signal fs_p1 : std_logic;
-  signal fs_p2 : std_logic;
-  signal fs_p3 : std_logic;
-  signal fs_p4 : std_logic;
-  signal fs_p5 : std_logic;
-  signal fs_p6 : std_logic;
-  signal fs_p7 : std_logic;
+  signal fs_t0_p1 : std_logic;
+  signal fs_t0_p2 : std_logic;
+  signal fs_t0_p3 : std_logic;
+  signal fs_t1_p1 : std_logic;
+  signal fs_t1_p2 : std_logic;
+  signal fs_t1_p3 : std_logic;
+  signal fs_motor_open_p1 : std_logic;
+  signal fs_motor_close_p1 : std_logic;
   signal fs_t0 : std_logic;
   signal fs_t1 : std_logic;
 begin
@@ -40,16 +40,16 @@ begin
   fs_nq1 <= not fs_q1;
   fs_n_too_hot <= not too_hot;
   fs_n_wind_strong <= not wind_strong;
-  fs_p0 <= fs_q0 and fs_q1 and fs_n_too_hot;
-  fs_p1 <= fs_q0 and wind_strong;
-  fs_p2 <= fs_nq0 and fs_nq1 and too_hot and fs_n_wind_strong;
-  fs_p3 <= fs_q0 and fs_nq1 and wind_strong;
-  fs_p4 <= fs_q0 and fs_nq1 and at_end;
-  fs_p5 <= fs_nq0 and fs_q1 and at_end;
-  fs_p6 <= fs_q0 and fs_nq1;
-  fs_p7 <= fs_nq0 and fs_q1;
-  fs_t0 <= fs_p0 or fs_p1 or fs_p2;
-  fs_t1 <= fs_p3 or fs_p4 or fs_p5;
+  fs_t0_p1 <= fs_nq0 and fs_nq1 and too_hot and fs_n_wind_strong;
+  fs_t0_p2 <= fs_q0 and fs_q1 and fs_n_too_hot;
+  fs_t0_p3 <= fs_q0 and wind_strong;
+  fs_t1_p1 <= fs_nq0 and fs_q1 and at_end;
+  fs_t1_p2 <= fs_q0 and fs_nq1 and wind_strong;
+  fs_t1_p3 <= fs_q0 and fs_nq1 and at_end;
+  fs_motor_open_p1 <= fs_q0 and fs_nq1;
+  fs_motor_close_p1 <= fs_nq0 and fs_q1;
+  fs_t0 <= fs_t0_p2 or fs_t0_p3 or fs_t0_p1;
+  fs_t1 <= fs_t1_p2 or fs_t1_p3 or fs_t1_p1;
 
   -- T flip-flops: Q+ = T Q' + T' Q; rising edge, asynchronous active-high reset.
   t_rising_flip_flops : process (clk, rst) is
@@ -63,6 +63,6 @@ begin
     end if;
   end process;
 
-  motor_open <= fs_p6;
-  motor_close <= fs_p7;
+  motor_open <= fs_motor_open_p1;
+  motor_close <= fs_motor_close_p1;
 end architecture structural;

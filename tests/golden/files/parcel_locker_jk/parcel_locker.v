@@ -19,33 +19,33 @@ module parcel_locker (
     wire fs_nq1;
     wire fs_n_door_closed;
     wire fs_n_timer_done;
-    wire fs_p0;
-    wire fs_p1;
-    wire fs_p2;
-    wire fs_p3;
-    wire fs_p4;
-    wire fs_p5;
-    wire fs_p6;
+    wire fs_j0_p1;
+    wire fs_j0_p2;
+    wire fs_k0_p1;
+    wire fs_k0_p2;
+    wire fs_k0_p3;
+    wire fs_unlock_p3;
+    wire fs_buzzer_p1;
     wire fs_j0;
     wire fs_k0;
 
-    not  fs_g0 (fs_nq0, fs_q0);
-    not  fs_g1 (fs_nq1, fs_q1);
-    not  fs_g2 (fs_n_door_closed, door_closed);
-    not  fs_g3 (fs_n_timer_done, timer_done);
-    and  fs_g4 (fs_p0, fs_nq0, fs_nq1, code_ok);
-    and  fs_g5 (fs_p1, fs_q1, fs_n_door_closed, timer_done);
-    and  fs_g6 (fs_p2, fs_q1, door_closed);
-    and  fs_g7 (fs_p3, fs_q0, fs_nq1, fs_n_door_closed);
-    and  fs_g8 (fs_p4, fs_nq1, timer_done);
-    and  fs_g9 (fs_p5, fs_q0, fs_nq1, fs_n_timer_done);
-    and  fs_g10 (fs_p6, fs_q0, fs_q1, fs_n_door_closed);
-    or   fs_g11 (fs_j0, fs_p0, fs_p1);
-    or   fs_g12 (fs_k0, fs_p2, fs_p3, fs_p4);
-    or   fs_g13 (unlock, fs_p0, fs_p3, fs_p5);
-    or   fs_g14 (buzzer, fs_p6, fs_p1);
+    not  fs_g_nq0 (fs_nq0, fs_q0);
+    not  fs_g_nq1 (fs_nq1, fs_q1);
+    not  fs_g_n_door_closed (fs_n_door_closed, door_closed);
+    not  fs_g_n_timer_done (fs_n_timer_done, timer_done);
+    and  fs_g_j0_p1 (fs_j0_p1, fs_nq0, fs_nq1, code_ok);
+    and  fs_g_j0_p2 (fs_j0_p2, fs_q1, fs_n_door_closed, timer_done);
+    and  fs_g_k0_p1 (fs_k0_p1, fs_q0, fs_nq1, fs_n_door_closed);
+    and  fs_g_k0_p2 (fs_k0_p2, fs_nq1, timer_done);
+    and  fs_g_k0_p3 (fs_k0_p3, fs_q1, door_closed);
+    and  fs_g_unlock_p3 (fs_unlock_p3, fs_q0, fs_nq1, fs_n_timer_done);
+    and  fs_g_buzzer_p1 (fs_buzzer_p1, fs_q0, fs_q1, fs_n_door_closed);
+    or   fs_g_j0 (fs_j0, fs_j0_p1, fs_j0_p2);
+    or   fs_g_k0 (fs_k0, fs_k0_p3, fs_k0_p1, fs_k0_p2);
+    or   fs_g_unlock (unlock, fs_j0_p1, fs_k0_p1, fs_unlock_p3);
+    or   fs_g_buzzer (buzzer, fs_buzzer_p1, fs_j0_p2);
     fs_jk_ff #(.RESET_VALUE(1'b0)) fs_ff0 (.clk(clk), .rst(rst), .j(fs_j0), .k(fs_k0), .q(fs_q0));
-    fs_jk_ff #(.RESET_VALUE(1'b0)) fs_ff1 (.clk(clk), .rst(rst), .j(fs_p3), .k(door_closed), .q(fs_q1));
+    fs_jk_ff #(.RESET_VALUE(1'b0)) fs_ff1 (.clk(clk), .rst(rst), .j(fs_k0_p1), .k(door_closed), .q(fs_q1));
 endmodule
 
 // JK flip-flop: Q+ = J Q' + K' Q; rising edge, asynchronous active-high reset (clear, or set when RESET_VALUE is 1).

@@ -25,13 +25,13 @@ architecture structural of parcel_locker is
   signal fs_nq1 : std_logic;
   signal fs_n_door_closed : std_logic;
   signal fs_n_timer_done : std_logic;
-  signal fs_p0 : std_logic;
-  signal fs_p1 : std_logic;
-  signal fs_p2 : std_logic;
-  signal fs_p3 : std_logic;
-  signal fs_p4 : std_logic;
-  signal fs_p5 : std_logic;
-  signal fs_p6 : std_logic;
+  signal fs_j0_p1 : std_logic;
+  signal fs_j0_p2 : std_logic;
+  signal fs_k0_p1 : std_logic;
+  signal fs_k0_p2 : std_logic;
+  signal fs_k0_p3 : std_logic;
+  signal fs_unlock_p3 : std_logic;
+  signal fs_buzzer_p1 : std_logic;
   signal fs_j0 : std_logic;
   signal fs_k0 : std_logic;
 begin
@@ -39,17 +39,17 @@ begin
   fs_nq1 <= not fs_q1;
   fs_n_door_closed <= not door_closed;
   fs_n_timer_done <= not timer_done;
-  fs_p0 <= fs_nq0 and fs_nq1 and code_ok;
-  fs_p1 <= fs_q1 and fs_n_door_closed and timer_done;
-  fs_p2 <= fs_q1 and door_closed;
-  fs_p3 <= fs_q0 and fs_nq1 and fs_n_door_closed;
-  fs_p4 <= fs_nq1 and timer_done;
-  fs_p5 <= fs_q0 and fs_nq1 and fs_n_timer_done;
-  fs_p6 <= fs_q0 and fs_q1 and fs_n_door_closed;
-  fs_j0 <= fs_p0 or fs_p1;
-  fs_k0 <= fs_p2 or fs_p3 or fs_p4;
-  unlock <= fs_p0 or fs_p3 or fs_p5;
-  buzzer <= fs_p6 or fs_p1;
+  fs_j0_p1 <= fs_nq0 and fs_nq1 and code_ok;
+  fs_j0_p2 <= fs_q1 and fs_n_door_closed and timer_done;
+  fs_k0_p1 <= fs_q0 and fs_nq1 and fs_n_door_closed;
+  fs_k0_p2 <= fs_nq1 and timer_done;
+  fs_k0_p3 <= fs_q1 and door_closed;
+  fs_unlock_p3 <= fs_q0 and fs_nq1 and fs_n_timer_done;
+  fs_buzzer_p1 <= fs_q0 and fs_q1 and fs_n_door_closed;
+  fs_j0 <= fs_j0_p1 or fs_j0_p2;
+  fs_k0 <= fs_k0_p3 or fs_k0_p1 or fs_k0_p2;
+  unlock <= fs_j0_p1 or fs_k0_p1 or fs_unlock_p3;
+  buzzer <= fs_buzzer_p1 or fs_j0_p2;
 
   -- JK flip-flops: Q+ = J Q' + K' Q; rising edge, asynchronous active-high reset.
   jk_rising_flip_flops : process (clk, rst) is
@@ -59,7 +59,7 @@ begin
       fs_q1 <= '0';
     elsif rising_edge(clk) then
       fs_q0 <= (fs_j0 and not fs_q0) or (not fs_k0 and fs_q0);
-      fs_q1 <= (fs_p3 and not fs_q1) or (not door_closed and fs_q1);
+      fs_q1 <= (fs_k0_p1 and not fs_q1) or (not door_closed and fs_q1);
     end if;
   end process;
 
