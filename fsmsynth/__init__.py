@@ -41,6 +41,7 @@ from fsmsynth.language.transitions import ExactCube
 from fsmsynth.logic.cost import Cost, CostWeights
 from fsmsynth.logic.sop import SopCover, minimize_sop
 from fsmsynth.map.targets import Target, target_named
+from fsmsynth.model.clocking import Clocking
 from fsmsynth.model.intent import Intent
 from fsmsynth.model.storage import STORAGES, Storage
 from fsmsynth.model.table import StateTable
@@ -53,7 +54,7 @@ from fsmsynth.version import __version__
 
 __all__ = [
     # model
-    "StateTable", "ExactCube", "Intent", "Storage", "STORAGES", "Encoding", "Equation",
+    "StateTable", "ExactCube", "Intent", "Clocking", "Storage", "STORAGES", "Encoding", "Equation",
     "Netlist", "Gate", "FlipFlop",
     "Cost", "CostWeights",
     # stages

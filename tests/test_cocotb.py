@@ -30,14 +30,18 @@ def run(folder: Path, name: str) -> subprocess.CompletedProcess[str]:
                           cwd=folder, capture_output=True, text=True, timeout=300)
 
 
-@pytest.mark.parametrize(("spec", "storage"), [("glass_kiln.toml", "jk"),
-                                               ("greenhouse_vent.toml", "t")])
+@pytest.mark.parametrize(("spec", "storage", "conventions"), [
+    ("glass_kiln.toml", "jk", []),
+    ("greenhouse_vent.toml", "t", []),
+    ("glass_kiln.toml", "d", ["--reset-style", "sync", "--reset-active", "low",
+                              "--reset-port", "rst_n", "--enable-port", "ce"])])
 def test_cocotb_runs_the_generated_tests_on_icarus(spec: str, storage: str,
+                                                  conventions: list[str],
                                                   tmp_path: Path) -> None:
     need_cocotb()
     name = read_table(EXAMPLES / spec).name
     assert main(["build", str(EXAMPLES / spec), "--storage", storage, "--cocotb", "-o",
-                 str(tmp_path), "--quiet"]) == 0
+                 str(tmp_path), "--quiet", *conventions]) == 0
     done = run(tmp_path, name)
     assert done.returncode == 0, done.stdout[-1500:] + done.stderr[-1500:]
     assert "TESTS=2 PASS=2 FAIL=0" in done.stdout + done.stderr

@@ -147,6 +147,18 @@ def design_options(command: argparse.ArgumentParser) -> None:
     command.add_argument("--weights", help="cost weights TOML file (docs/guide/synthesis.md)")
     command.add_argument("--clock-edge", default="rising", choices=("rising", "falling"),
                          help="edge the flip-flops sample on (default rising)")
+    group = command.add_argument_group(
+        "clock and reset conventions (default: the spec's [clocking], else clk and an "
+        "asynchronous active-high rst)")
+    group.add_argument("--clock-port", metavar="NAME", help="name of the clock port")
+    group.add_argument("--reset-port", metavar="NAME", help="name of the reset port")
+    group.add_argument("--reset-style", choices=("async", "sync"),
+                       help="asynchronous reset, or synchronous (at the clock edge)")
+    group.add_argument("--reset-active", choices=("high", "low"),
+                       help="the reset level that resets")
+    group.add_argument("--enable-port", metavar="NAME",
+                       help="add a clock enable (active high) by this name: while it is 0 "
+                            "no flip-flop changes")
     command.add_argument("--no-minimize", action="store_true",
                          help="keep every state (skip state minimization)")
 

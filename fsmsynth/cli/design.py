@@ -91,7 +91,9 @@ def options_of(args: argparse.Namespace) -> BuildOptions:
         width=args.width, clock_edge=args.clock_edge, jobs=args.jobs,
         time_limit=args.time_limit, force=args.force, target=target_arg(args.target),
         map_for=args.map_for, outputs=args.outputs, unit_distance=args.unit_distance,
-        strict=args.strict, accept_warnings=accepted_arg(args), **files)
+        strict=args.strict, accept_warnings=accepted_arg(args),
+        clock_port=args.clock_port, reset_port=args.reset_port, reset_style=args.reset_style,
+        reset_active=args.reset_active, enable_port=args.enable_port, **files)
 
 
 def build_command(args: argparse.Namespace) -> int:

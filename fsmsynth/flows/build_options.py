@@ -8,7 +8,7 @@ reads them from a project file.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field, fields
+from dataclasses import dataclass, field, fields, replace
 from pathlib import Path
 
 from fsmsynth.base.errors import OptionError
@@ -18,7 +18,9 @@ from fsmsynth.flows.pipeline import OUTPUT_KINDS, UNUSED_POLICIES
 from fsmsynth.logic.cost import DEFAULT_WEIGHTS, CostWeights
 from fsmsynth.logic.cover import METHODS as LOGIC_METHODS
 from fsmsynth.map.targets import Target, target_named
+from fsmsynth.model.clocking import DEFAULT_CLOCKING, LEVELS, RESET_STYLES, Clocking
 from fsmsynth.model.storage import STORAGES
+from fsmsynth.model.table import StateTable
 from fsmsynth.stages.assign.scoring import SEARCHES
 from fsmsynth.stages.encode import METHODS as ENCODE_METHODS
 from fsmsynth.stages.netlist import EDGES
@@ -67,6 +69,10 @@ def option_problem(key: str, value: object) -> str | None:
         problem = (accept_problem(value) if isinstance(value, tuple) else
                    f"give a list of warnings, not {value!r}")
         return f"accept_warnings: {problem}" if problem else None
+    elif key in ("reset_style", "reset_active") and value is not None and value not in (
+            RESET_STYLES if key == "reset_style" else LEVELS):
+        return (f"{key} {value!r}: use "
+                f"{' or '.join(RESET_STYLES if key == 'reset_style' else LEVELS)}")
     elif key == "strict" and not isinstance(value, bool):
         return f"strict {value!r}: give true or false"
     elif key in ("jobs", "width") and value is not None and not _whole(value, 1):
@@ -108,6 +114,11 @@ class BuildOptions:
     force: bool = False
     strict: bool = False
     accept_warnings: tuple[str, ...] = ()
+    clock_port: str | None = None
+    reset_port: str | None = None
+    reset_style: str | None = None
+    reset_active: str | None = None
+    enable_port: str | None = None
     hdl: tuple[str, ...] = ("verilog",)
     testbench: bool = False
     cocotb: bool = False
@@ -117,8 +128,21 @@ class BuildOptions:
             problem = option_problem(f.name, getattr(self, f.name))
             if problem:
                 raise OptionError(problem)
+        self.clocking_for(None)  # a bad port name or style is an OptionError here
         if self.cocotb and "verilog" not in self.hdl:
             raise OptionError("cocotb runs the Verilog design in Icarus: keep verilog in hdl")
+
+    def clocking_for(self, table: StateTable | None) -> Clocking | None:
+        """The conventions these options ask for, over those of ``table``'s spec; ``None``
+        when they ask for none (the spec's, or the defaults, then apply)."""
+        asked = {"clock": self.clock_port, "reset": self.reset_port,
+                 "reset_style": self.reset_style, "reset_active": self.reset_active,
+                 "enable": self.enable_port}
+        given: dict[str, str] = {k: v for k, v in asked.items() if v is not None}
+        if not given:
+            return None
+        base = (table.clocking if table is not None else None) or DEFAULT_CLOCKING
+        return replace(base, **given)
 
     def fingerprint(self) -> str:
         """Text that changes exactly when an option does (``repr`` of every field; the

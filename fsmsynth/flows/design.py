@@ -18,6 +18,7 @@ from fsmsynth.logic.functions import LogicFunctions
 from fsmsynth.map.expr import Expr
 from fsmsynth.map.factor import factor
 from fsmsynth.map.realize import MappedDesign
+from fsmsynth.model.clocking import Clocking
 from fsmsynth.model.storage import Storage
 from fsmsynth.model.table import StateTable
 from fsmsynth.stages.assign.scoring import (
@@ -181,7 +182,7 @@ class Design:
                            else "rising", spec=self.table,
                            members={r: tuple(sorted(m)) for r, m in
                                     self.minimization.classes.items()}
-                           if self.minimization else None)
+                           if self.minimization else None, clocking=self.clocking)
 
     @cached_property
     def rtl_verilog(self) -> str:
@@ -217,6 +218,11 @@ class Design:
         return self.table
 
     @property
+    def clocking(self) -> Clocking:
+        """The clock, reset and enable conventions the netlist, HDL and benches follow."""
+        return self.netlist.clocking
+
+    @property
     def states_removed(self) -> int:
         """How many states minimization removed (unreachable and merged)."""
         return len(self.table.states) - len(self.encoded_table.states)
@@ -248,6 +254,6 @@ class Design:
                        "; outputs registered (Moore timing kept)")
         return (f"storage: {storage}; clock edge: {', '.join(edges)}; "
                 f"encoding: {self.encoding.method} ({codes}); unused codes: {self.unused}"
-                f"{target}\n"
+                f"{target}; {self.clocking.describe()}\n"
                 "Caution: synchronise asynchronous inputs, and verify timing in the target "
                 "technology.")

@@ -28,6 +28,7 @@ from fsmsynth.logic.engine_lock import exclusive
 from fsmsynth.logic.functions import LogicFunctions
 from fsmsynth.map.realize import map_design
 from fsmsynth.map.targets import Target, target_named
+from fsmsynth.model.clocking import DEFAULT_CLOCKING, Clocking
 from fsmsynth.model.storage import STORAGES, Storage, storage_named
 from fsmsynth.model.table import StateTable
 from fsmsynth.stages.assign.adjacency import adjacency_search
@@ -69,7 +70,7 @@ def synthesize(table: StateTable, storage: StorageChoice = "d",
                map_for: str = "area",
                outputs: str | Mapping[str, str] = "combinational",
                unit_distance: bool = False, accept_warnings: Sequence[str] = (),
-               strict: bool = False) -> Design:
+               strict: bool = False, clocking: Clocking | None = None) -> Design:
     """Synthesize ``table`` into equations and a netlist, and prove the result.
 
     Parameters
@@ -138,6 +139,12 @@ def synthesize(table: StateTable, storage: StorageChoice = "d",
         its own (:mod:`fsmsynth.stages.registered`); Moore timing is kept, Mealy outputs come one
         clock later, and the netlist is verified against that (``design.reference``).
         ``design.glitches`` reports what can still glitch.
+    clocking:
+        The clock, reset and enable ports and how the flip-flops reset
+        (:class:`~fsmsynth.model.clocking.Clocking`: asynchronous or synchronous, active
+        high or low, an optional clock enable); by default what the spec's ``[clocking]``
+        says, else ``clk`` and an asynchronous active-high ``rst``.  The netlist, the HDL and
+        the benches follow it.
     accept_warnings, strict:
         ``design.warnings`` holds the spec's warnings
         (:func:`fsmsynth.checks.spec_warnings.spec_warnings`), less those the spec or
@@ -172,6 +179,7 @@ def synthesize(table: StateTable, storage: StorageChoice = "d",
     T0 = Q1'
     """
     _check_arguments(table, weights, seed, unused, clock_edge)
+    conventions = _clocking_for(table, clocking)
     warnings = spec_warnings(table, accept_warnings)
     if strict and warnings:
         raise WarningsAsErrors(strict_message(table.name, warnings), warnings)
@@ -190,8 +198,23 @@ def synthesize(table: StateTable, storage: StorageChoice = "d",
     if clock_edge != "rising":
         chosen = replace(chosen, netlist=replace(chosen.netlist, flip_flops=tuple(
             replace(ff, edge=clock_edge) for ff in chosen.netlist.flip_flops)))
+    chosen = replace(chosen, netlist=chosen.netlist.with_clocking(conventions))
     chosen = replace(chosen, assignment=search, warnings=warnings)
     return _proved(chosen) if check else chosen
+
+
+def _clocking_for(table: StateTable, clocking: Clocking | None) -> Clocking:
+    """The conventions asked for, else the spec's, else the defaults; refused when a port
+    name is also one of the machine's."""
+    chosen = clocking or table.clocking or DEFAULT_CLOCKING
+    if not isinstance(chosen, Clocking):
+        raise OptionError(f"clocking must be a Clocking, not {chosen!r}")
+    taken = {p for p, _w in ports_of([*table.inputs, *table.outputs])} | {table.name}
+    for port in chosen.ports:
+        if port in taken:
+            raise OptionError(f"port {port!r} (clock, reset or enable) is also a name of the "
+                              f"machine {table.name!r}: rename one")
+    return chosen
 
 
 def _check_arguments(table: StateTable, weights: CostWeights, seed: int, unused: str,

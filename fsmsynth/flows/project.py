@@ -49,7 +49,8 @@ def synthesize_with(table: StateTable, options: BuildOptions) -> Design:
                       time_limit=options.time_limit, force=options.force,
                       target=options.target, map_for=options.map_for,
                       outputs=options.outputs, unit_distance=options.unit_distance,
-                      accept_warnings=options.accept_warnings, strict=options.strict)
+                      accept_warnings=options.accept_warnings, strict=options.strict,
+                      clocking=options.clocking_for(table))
 
 
 def design_files(design: Design, options: BuildOptions) -> dict[str, str]:
@@ -67,11 +68,13 @@ def design_files(design: Design, options: BuildOptions) -> dict[str, str]:
         files[f"{name}_rtl.vhd"] = design.rtl_vhdl
     files[f"{name}.json"] = design.json
     if options.testbench and {"verilog", "verilog-rtl"} & set(options.hdl):
-        files[f"{name}_tb.v"] = write_testbench(design.reference)
+        files[f"{name}_tb.v"] = write_testbench(design.reference, clocking=design.clocking)
     if options.testbench and {"vhdl", "vhdl-rtl"} & set(options.hdl):
-        files[f"{name}_tb.vhd"] = write_vhdl_testbench(design.reference)
+        files[f"{name}_tb.vhd"] = write_vhdl_testbench(design.reference,
+                                                       clocking=design.clocking)
     if options.cocotb:
-        files[f"{name}_cocotb.py"] = write_cocotb_bench(design.reference)
+        files[f"{name}_cocotb.py"] = write_cocotb_bench(design.reference,
+                                                        clocking=design.clocking)
     return files
 
 

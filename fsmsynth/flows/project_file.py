@@ -25,7 +25,8 @@ targets = ["two-level", "nand2"]
 Option keys: ``storage``, ``encoding``, ``logic``, ``unused``, ``outputs``, ``minimize``,
 ``clock_edge``, ``target``, ``map_for``, ``weights`` (a weights file), ``seed``, ``budget``,
 ``width``, ``unit_distance``, ``jobs``, ``time_limit``, ``force``, ``hdl``, ``testbench``,
-``cocotb``, ``strict``, ``accept_warnings`` (a list): the options of ``fsmsynth build``, with
+``cocotb``, ``strict``, ``accept_warnings`` (a list), ``clock_port``, ``reset_port``,
+``reset_style``, ``reset_active``, ``enable_port``: the options of ``fsmsynth build``, with
 underscores.
 """
 
@@ -52,7 +53,8 @@ _KINDS: dict[str, tuple[type, ...]] = {
     "map_for": (str,), "weights": (str,), "seed": (int,), "budget": (int,), "width": (int,),
     "unit_distance": (bool,), "jobs": (int,), "time_limit": (int, float), "force": (bool,),
     "hdl": (str, list), "testbench": (bool,), "cocotb": (bool,), "strict": (bool,),
-    "accept_warnings": (list,),
+    "accept_warnings": (list,), "clock_port": (str,), "reset_port": (str,),
+    "reset_style": (str,), "reset_active": (str,), "enable_port": (str,),
 }
 SPEC_SUFFIXES = (".toml", ".csv")
 

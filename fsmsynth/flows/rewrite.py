@@ -51,6 +51,9 @@ def rewrite_spec(text: str, path: str = "<string>", *, guards: bool = False) -> 
     if "state_outputs" in data:
         out += ["", "[state_outputs]"] + [f"{toml_value(str(k))} = {toml_value(v)}"
                                           for k, v in data["state_outputs"].items()]
+    if "clocking" in data:
+        out += ["", "[clocking]"] + [f"{k} = {toml_value(v)}"
+                                     for k, v in data["clocking"].items()]
     result = "\n".join(out) + "\n"
     again = parse_spec(result, path)  # the same machine, meant the same way, or a defect here
     assert again == table and again.intent == table.intent

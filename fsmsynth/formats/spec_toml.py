@@ -12,17 +12,21 @@ from dataclasses import replace
 from pathlib import Path
 from typing import Any
 
-from fsmsynth.base.errors import SpecFileError, TableError
+from fsmsynth.base.errors import OptionError, SpecFileError, TableError
 from fsmsynth.base.frozen import FrozenMap
-from fsmsynth.base.names import ports_of
+from fsmsynth.base.names import did_you_mean, ports_of
 from fsmsynth.checks.spec_warnings import accept_problem
 from fsmsynth.formats.text_files import read_text
 from fsmsynth.language.transitions import ExactCube
+from fsmsynth.model.clocking import Clocking
 from fsmsynth.model.table import StateTable
 
 KEYS = ("name", "kind", "inputs", "outputs", "reset", "states", "state_outputs",
         "transition", "every_state", "default_outputs", "otherwise", "invariants", "final",
-        "accept_warnings")
+        "accept_warnings", "clocking")
+CLOCKING_KEYS = ("clock", "reset", "reset_style", "reset_active", "enable")
+"""Keys of ``[clocking]``: the clock, reset and enable port names, and how the reset acts
+(:class:`~fsmsynth.model.clocking.Clocking`)."""
 TRANSITION_KEYS = ("from", "when", "cube", "to", "set")
 """Fields of one ``[[transition]]`` entry: present state, a guard (``when``) or an exact
 input cube (``cube``), next state (``"-"``: don't care), outputs set."""
@@ -203,7 +207,32 @@ def _guarded(data: dict[str, Any], path: str, lines: _Lines, legacy: bool) -> St
     if moore and not legacy:
         _moore_outputs_said(table, data, path, lines)
     return replace(table, intent=replace(table.intent, source=path,
-                                         lines=FrozenMap(_introduced(table, data, lines))))
+                                         lines=FrozenMap(_introduced(table, data, lines))),
+                   clocking=_clocking(data, path, lines))
+
+
+def _clocking(data: dict[str, Any], path: str, lines: _Lines) -> Clocking | None:
+    """The ``[clocking]`` table, checked."""
+    given = data.get("clocking")
+    if given is None:
+        return None
+    where = lines.section("clocking") or lines.key("clocking")
+    if not isinstance(given, dict):
+        raise SpecFileError("[clocking] must be a table of clock, reset, reset_style, "
+                            "reset_active and enable", path=path, line=where)
+    for key, value in given.items():
+        if key not in CLOCKING_KEYS:
+            raise SpecFileError(f"[clocking]: unknown key {key!r}"
+                                f"{did_you_mean(key, CLOCKING_KEYS)} (keys: "
+                                f"{', '.join(CLOCKING_KEYS)})", path=path,
+                                line=lines.key(key, "clocking") or where)
+        if not isinstance(value, str):
+            raise SpecFileError(f"[clocking]: {key} must be text, not {value!r}", path=path,
+                                line=lines.key(key, "clocking") or where)
+    try:
+        return Clocking(**given)
+    except OptionError as exc:
+        raise SpecFileError(f"[clocking]: {exc}", path=path, line=where) from None
 
 
 def _introduced(table: StateTable, data: dict[str, Any], lines: _Lines) -> dict[str, int]:

@@ -18,6 +18,7 @@ from fsmsynth.language.signals import condition_problem
 from fsmsynth.language.transitions import compile_transitions
 from fsmsynth.logic.cube import Cube
 from fsmsynth.logic.engine_lock import exclusive
+from fsmsynth.model.clocking import Clocking
 from fsmsynth.model.intent import TABLE_OF_ROWS, Intent
 
 Kind = Literal["mealy", "moore"]
@@ -49,6 +50,8 @@ class StateTable:
     invariants: tuple[str, ...] = ()
     intent: Intent = field(default=TABLE_OF_ROWS, compare=False)
     """How the table is meant (not part of the machine, so not of equality)."""
+    clocking: Clocking | None = field(default=None, compare=False)
+    """The clock, reset and enable conventions the spec asks for (``[clocking]``), if any."""
     _by_state: Mapping[str, tuple[int, ...]] = field(
         default_factory=lambda: FrozenMap({}), compare=False, repr=False)
 

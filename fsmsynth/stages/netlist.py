@@ -15,6 +15,7 @@ from fsmsynth.base.names import RESERVED_PREFIX, split_bit
 from fsmsynth.logic.cost import normal_terms
 from fsmsynth.logic.cover import Cover
 from fsmsynth.logic.cube import Cube
+from fsmsynth.model.clocking import Clocking
 from fsmsynth.model.storage import Storage
 
 EDGES = ("rising", "falling")
@@ -118,7 +119,11 @@ class Netlist:
     flip_flops:
         One per state bit, bit 0 first.
     clock, reset:
-        Names of the clock and the asynchronous active-high reset.
+        Names of the clock and the reset port.
+    reset_style, reset_active, enable:
+        How the flip-flops reset (``"async"`` or ``"sync"``, active ``"high"`` or
+        ``"low"``) and the clock-enable port that holds them while it is 0 (``None``: no
+        enable); see :class:`~fsmsynth.model.clocking.Clocking`.
     """
 
     name: str
@@ -128,6 +133,21 @@ class Netlist:
     flip_flops: tuple[FlipFlop, ...]
     clock: str = "clk"
     reset: str = "rst"
+    reset_style: str = "async"
+    reset_active: str = "high"
+    enable: str | None = None
+
+    @property
+    def clocking(self) -> Clocking:
+        """The clock, reset and enable conventions of the flip-flops."""
+        return Clocking(clock=self.clock, reset=self.reset, reset_style=self.reset_style,
+                        reset_active=self.reset_active, enable=self.enable)
+
+    def with_clocking(self, clocking: Clocking) -> Netlist:
+        """The same circuit with the conventions of ``clocking``."""
+        return replace(self, clock=clocking.clock, reset=clocking.reset,
+                       reset_style=clocking.reset_style, reset_active=clocking.reset_active,
+                       enable=clocking.enable)
 
     @property
     def reset_code(self) -> int:
@@ -177,7 +197,7 @@ def checked_netlist(netlist: Netlist) -> Netlist:
             raise NetlistError(f"net {net!r} has two drivers: {driver[net]} and {by}", net=net)
         driver[net] = by
 
-    for name in (netlist.clock, netlist.reset):
+    for name in netlist.clocking.ports:
         drive(name, "the port " + repr(name))
     for name in netlist.inputs:
         drive(name, f"the input {name!r}")

@@ -10,6 +10,7 @@ Run as a script it builds the Verilog design with Icarus and runs both tests.
 from __future__ import annotations
 
 from fsmsynth.base.names import ports_of
+from fsmsynth.model.clocking import DEFAULT_CLOCKING, Clocking
 from fsmsynth.model.table import StateTable
 from fsmsynth.writers.testbench import bench_steps
 
@@ -39,6 +40,8 @@ ROWS = {rows!r}
 STATE_OUTPUTS = {state_outputs!r}
 STEPS = {steps!r}
 HALF = {half}
+CLOCK, RESET_PORT, ENABLE = {clock!r}, {reset_port!r}, {enable!r}
+ASSERTED, RELEASED, SYNC_RESET = {asserted}, {released}, {sync}
 
 
 def lookup(state, word):
@@ -74,23 +77,39 @@ def mismatches(dut, cube):
 
 
 async def reset(dut):
-    dut.rst.value = 1
+    getattr(dut, RESET_PORT).value = ASSERTED
     await Timer(1, "ns")
-    dut.rst.value = 0
+    if SYNC_RESET:
+        await clock(dut)
+    getattr(dut, RESET_PORT).value = RELEASED
     await Timer(1, "ns")
 
 
 async def clock(dut):
-    dut.clk.value = 1
+    getattr(dut, CLOCK).value = 1
     await Timer(HALF, "ns")
-    dut.clk.value = 0
+    getattr(dut, CLOCK).value = 0
     await Timer(1, "ns")
+
+
+async def hold(dut):
+    """A clock edge with the enable at 0: the state must not move."""
+    getattr(dut, ENABLE).value = 0
+    await clock(dut)
+    getattr(dut, ENABLE).value = 1
+
+
+def start(dut):
+    getattr(dut, CLOCK).value = 0
+    getattr(dut, RESET_PORT).value = RELEASED
+    if ENABLE:
+        getattr(dut, ENABLE).value = 1
 
 
 @cocotb.test()
 async def table_checks(dut):
     """Every check of the table-derived bench, through the simulator."""
-    dut.clk.value = 0
+    start(dut)
     errors, checks, test = [], 0, ""
     for step in STEPS:
         if step[0] == "comment":
@@ -100,6 +119,8 @@ async def table_checks(dut):
         elif step[0] == "drive":
             drive(dut, step[1])
             await Timer(HALF - 1, "ns")
+        elif step[0] == "hold":
+            await hold(dut)
         elif step[0] == "check":
             checks += sum(1 for c in step[3] if c != "-")
             errors += [(test, step[2], *m) for m in mismatches(dut, step[3])]
@@ -115,7 +136,7 @@ async def random_against_the_table(dut):
     1), compared with the table's own model; back to reset where the table says nothing."""
     rng = random.Random(int(os.environ.get("FSMSYNTH_SEED", "1")))
     cycles = int(os.environ.get("COCOTB_CYCLES", "500"))
-    dut.clk.value = 0
+    start(dut)
     await reset(dut)
     state, checks = RESET, 0
     for cycle in range(cycles):
@@ -166,8 +187,10 @@ if __name__ == "__main__":
 '''
 
 
-def write_cocotb_bench(table: StateTable, *, period: int = 10) -> str:
-    """The cocotb test module's text (see the module docstring)."""
+def write_cocotb_bench(table: StateTable, *, period: int = 10,
+                       clocking: Clocking = DEFAULT_CLOCKING) -> str:
+    """The cocotb test module's text (see the module docstring); ``clocking`` as for
+    :func:`fsmsynth.writers.testbench.write_testbench`."""
     rows: dict[str, list[tuple[str, str | None, str | None]]] = {}
     for state, cube, nxt, out in table.rows:
         rows.setdefault(state, []).append((cube, nxt, out))
@@ -176,4 +199,7 @@ def write_cocotb_bench(table: StateTable, *, period: int = 10) -> str:
         in_ports=[(p, w or 1) for p, w in ports_of(table.inputs)],
         out_ports=[(p, w or 1) for p, w in ports_of(table.outputs)], kind=table.kind,
         reset=table.reset, rows=rows, state_outputs=dict(table.state_outputs),
-        steps=bench_steps(table), half=max(2, period // 2))
+        steps=bench_steps(table, hold=clocking.enable is not None), half=max(2, period // 2),
+        clock=clocking.clock, reset_port=clocking.reset, enable=clocking.enable,
+        asserted=int(clocking.asserted), released=int(clocking.released),
+        sync=clocking.reset_style == "sync")

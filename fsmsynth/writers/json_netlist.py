@@ -36,6 +36,9 @@ def netlist_data(netlist: Netlist, cost: Mapping[str, object] | None = None) -> 
         "module": netlist.name,
         "clock": netlist.clock,
         "reset": netlist.reset,
+        "reset_style": netlist.reset_style,
+        "reset_active": netlist.reset_active,
+        "enable": netlist.enable,
         "inputs": list(netlist.inputs),
         "outputs": [{"port": p, "net": n} for p, n in netlist.outputs],
         # The module's ports as the Verilog declares them: a vector is one port whose bits

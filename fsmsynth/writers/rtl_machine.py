@@ -14,6 +14,7 @@ states, vectors and comparisons need no translation of their text.
 
 from __future__ import annotations
 
+import re
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass
 from typing import Any
@@ -22,6 +23,7 @@ from fsmsynth.base.names import ports_of
 from fsmsynth.language.guards import compile_condition, short_cover
 from fsmsynth.logic import bdd
 from fsmsynth.logic.cube import Cube
+from fsmsynth.model.clocking import DEFAULT_CLOCKING, Clocking
 from fsmsynth.model.regions import state_regions
 from fsmsynth.model.table import StateTable
 
@@ -38,10 +40,11 @@ class Branch:
 
 @dataclass(frozen=True, slots=True)
 class RtlState:
-    """A state: its name, code, spec line, Moore output word, and its branches in order
-    (the last may be the ``else`` one: ``is_else``)."""
+    """A state: its name, the HDL constant that names it (``S_IDLE``), its code, spec line,
+    Moore output word, and its branches in order (the last may be the ``else`` one)."""
 
     name: str
+    constant: str
     code: int
     line: int | None
     word: str | None
@@ -76,6 +79,7 @@ class RtlMachine:
     method: str
     source: str | None
     invariants: tuple[RtlInvariant, ...]
+    clocking: Clocking = DEFAULT_CLOCKING
 
     @property
     def unused_codes(self) -> bool:
@@ -84,6 +88,10 @@ class RtlMachine:
 
     def state(self, name: str) -> RtlState:
         return next(s for s in self.states if s.name == name)
+
+    def constant(self, name: str) -> str:
+        """The HDL constant naming state ``name``."""
+        return self.state(name).constant
 
     def reset_word(self) -> str:
         """What registered outputs hold after reset: the reset state's outputs (Moore), or
@@ -163,25 +171,44 @@ def _invariants(spec: StateTable, states: tuple[str, ...],
     return tuple(found)
 
 
+def _constants(states: Sequence[str]) -> dict[str, str]:
+    """``S_IDLE`` for ``idle``: upper case, anything but letters and digits one underscore
+    (a merged state ``a+b`` is ``S_A_B``), numbered where two would be the same (VHDL
+    ignores case)."""
+    found: dict[str, str] = {}
+    for state in states:
+        base = "S_" + "_".join(p for p in re.split(r"[^A-Za-z0-9]+", state) if p).upper()
+        name, n = base, 1
+        while name in found.values():
+            name, n = f"{base}_{n}", n + 1
+        found[state] = name
+    return found
+
+
 def rtl_machine(table: StateTable, codes: Mapping[str, int], width: int, *, method: str,
                 unused: str, registered: bool, edge: str = "rising",
                 spec: StateTable | None = None,
-                members: Mapping[str, Sequence[str]] | None = None) -> RtlMachine:
+                members: Mapping[str, Sequence[str]] | None = None,
+                clocking: Clocking = DEFAULT_CLOCKING) -> RtlMachine:
     """The RTL description of ``table`` (the machine that was encoded) with state ``codes``
     of ``width`` bits; ``registered`` puts every output in a register of its own (as
     :mod:`fsmsynth.stages.registered` builds them).  The invariants are those of ``spec``
     (the table as given; by default ``table``), whose states ``members`` maps each of
-    ``table``'s to (by default itself)."""
+    ``table``'s to (by default itself).  ``clocking`` names the clock, reset and enable
+    ports and says how the registers reset."""
     var = bdd.variables(len(table.inputs))
     regions = state_regions(table, var)
     states = []
+    constants = _constants(table.states)
     for state in table.states:
         branches, last_is_else = _branches(table, state, regions[state], var)
         word = _refined(table.output_cube_of(state)) if table.kind == "moore" else None
-        states.append(RtlState(state, codes[state], table.intent.line_of("state", state), word,
-                               branches, last_is_else))
+        states.append(RtlState(state, constants[state], codes[state],
+                               table.intent.line_of("state", state), word, branches,
+                               last_is_else))
     return RtlMachine(name=table.name, kind=table.kind, inputs=table.inputs,
                       outputs=table.outputs, width=max(width, 1), states=tuple(states),
                       reset=table.reset, unused_safe=unused == "safe", registered=registered,
                       edge=edge, method=method, source=table.intent.source,
-                      invariants=_invariants(spec or table, table.states, members or {}))
+                      invariants=_invariants(spec or table, table.states, members or {}),
+                      clocking=clocking)

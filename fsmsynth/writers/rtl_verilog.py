@@ -18,11 +18,7 @@ from fsmsynth.base.names import ports_of
 from fsmsynth.logic.cube import Cube
 from fsmsynth.version import __version__
 from fsmsynth.writers.rtl_machine import RtlInvariant, RtlMachine, RtlState
-
-
-def state_constant(name: str) -> str:
-    """The constant that names a state's code: ``S_IDLE`` for ``idle``."""
-    return "S_" + name.upper().replace("/", "_")
+from fsmsynth.writers.verilog import register_block
 
 
 def _literals(cube: Cube, signals: tuple[str, ...]) -> list[str]:
@@ -75,7 +71,7 @@ def _chain(m: RtlMachine, state: RtlState, suffix: str) -> list[str]:
     lines: list[str] = []
     chain = state.branches
     for k, branch in enumerate(chain):
-        body = [f"state_next = {state_constant(branch.to)};"]
+        body = [f"state_next = {m.constant(branch.to)};"]
         body += _assignments(branch.word, m.outputs, suffix) if branch.word else []
         if state.last_is_else and len(chain) == 1:
             return body
@@ -91,14 +87,14 @@ def _case(m: RtlMachine, suffix: str, moore_words: bool) -> list[str]:
     lines = ["case (state)"]
     for state in m.states:
         where = f" (spec line {state.line})" if state.line else ""
-        lines.append(f"    {state_constant(state.name)}: begin  // {state.name}{where}")
+        lines.append(f"    {m.constant(state.name)}: begin  // {state.name}{where}")
         body = _assignments(state.word, m.outputs, suffix) if state.word and moore_words else []
         body += _chain(m, state, suffix)
         if not state.branches:
             body.append(f"// stays in {state.name}")
         lines += [f"        {b}" for b in body] + ["    end"]
     if m.unused_codes and m.unused_safe:
-        lines.append(f"    default: state_next = {state_constant(m.reset)};  // unused codes "
+        lines.append(f"    default: state_next = {m.constant(m.reset)};  // unused codes "
                      "go to reset (unused = \"safe\")")
     elif m.unused_codes:
         lines.append(f"    default: state_next = {{{m.width}{{1'bx}}}};  // unused codes: "
@@ -121,7 +117,7 @@ def _read_inputs(m: RtlMachine) -> set[str]:
 
 
 def _ports(m: RtlMachine) -> list[str]:
-    decls = ["input  wire clk", "input  wire rst"]
+    decls = [f"input  wire {p}" for p in m.clocking.ports]
     decls += [f"input  wire {_range(w)}{p}" for p, w in ports_of(m.inputs)]
     decls += [f"output reg  {_range(w)}{p}" for p, w in ports_of(m.outputs)]
     read = _read_inputs(m)
@@ -143,9 +139,8 @@ def _range(width: int | None) -> str:
 
 
 def _registers(m: RtlMachine) -> list[str]:
-    clock = "posedge" if m.edge == "rising" else "negedge"
     reset_word = m.reset_word()
-    on_reset = [f"state <= {state_constant(m.reset)};"]
+    on_reset = [f"state <= {m.constant(m.reset)};"]
     on_edge = ["state <= state_next;"]
     if m.registered:
         at = 0
@@ -156,11 +151,9 @@ def _registers(m: RtlMachine) -> list[str]:
             on_edge.append(f"{port} <= {port}_d;")
             at += n
     what = "State register" + (" and output registers" if m.registered else "")
-    return [f"// {what}: {m.edge} edge, asynchronous active-high reset to "
-            f"{m.reset}.",
-            f"always @({clock} clk or posedge rst) begin",
-            "    if (rst) begin", *(f"        {x}" for x in on_reset), "    end else begin",
-            *(f"        {x}" for x in on_edge), "    end", "end"]
+    c = m.clocking
+    return [f"// {what}: {m.edge} edge, {c.describe()}; reset to {m.reset}.",
+            *register_block(m.edge, c, on_reset, on_edge, c.reset, c.enable or "", c.clock)]
 
 
 def _defaults(m: RtlMachine, suffix: str) -> list[str]:
@@ -170,28 +163,31 @@ def _defaults(m: RtlMachine, suffix: str) -> list[str]:
 
 
 def assertion_lines(m: RtlMachine, state: str = "state",
-                    code: Callable[[str], str] = state_constant) -> list[str]:
+                    code: Callable[[str], str] | None = None) -> list[str]:
     """Each invariant as a check at every clock edge out of reset that reports with
     ``$error``, inside ``ifndef SYNTHESIS``; ``state`` is the expression of the present
     code and ``code`` names a state's code (a structural netlist gives its flip-flops and
     literal codes)."""
     if not m.invariants:
         return []
+    named = code or m.constant
     signals = (*m.inputs, *m.outputs)
     lines = ["", "`ifndef SYNTHESIS", "/* verilator lint_off SYNCASYNCNET */  // rst: "
              "asynchronous in the registers, a plain condition here",
              "// Invariants of the spec, checked at every clock edge out of reset (left out "
              "of synthesis)."]
     clock = "posedge" if m.edge == "rising" else "negedge"
+    c = m.clocking
+    running = f"!{c.reset}" if c.reset_active == "high" else c.reset
     for inv in m.invariants:
-        held = held_conditions(inv, signals, lambda s: f"{state} != {code(s)}", expression,
+        held = held_conditions(inv, signals, lambda s: f"{state} != {named(s)}", expression,
                                " || ")
         if not held:
             continue
         text = inv.text.replace('"', "'")
         lines += [f"// invariant {inv.number}: {inv.text}",
-                  f"always @({clock} clk)",
-                  f"    if (!rst && !({' && '.join(held)}))",
+                  f"always @({clock} {c.clock})",
+                  f"    if ({running} && !({' && '.join(held)}))",
                   f"        $error(\"invariant {inv.number} broken: {text}\");"]
     return lines + ["/* verilator lint_on SYNCASYNCNET */", "`endif"]
 
@@ -217,7 +213,7 @@ def write_rtl_verilog(m: RtlMachine, *, header: str = "") -> str:
              *(f"// {h}" if h else "//" for h in header.splitlines()),
              "`default_nettype none", "/* verilator lint_off DECLFILENAME */", "",
              f"module {m.name} (", *_ports(m), ");"]
-    codes = ", ".join(f"{state_constant(s.name)} = {_code(m, s.code)}" for s in m.states)
+    codes = ", ".join(f"{m.constant(s.name)} = {_code(m, s.code)}" for s in m.states)
     lines += [f"    // State codes ({m.method} encoding).", f"    localparam [{m.width - 1}:0] "
               + codes + ";", f"    reg [{m.width - 1}:0] state, state_next;"]
     if m.registered:
@@ -243,6 +239,6 @@ def _next_words(m: RtlMachine) -> list[str]:
         assert state.word is not None
         body = _assignments(state.word, m.outputs, "_d")
         if body:
-            lines.append(f"    {state_constant(state.name)}: begin "
+            lines.append(f"    {m.constant(state.name)}: begin "
                          + " ".join(body) + " end")
     return lines + ["    default: ;", "endcase"]

@@ -19,8 +19,8 @@ from fsmsynth.base.names import ports_of
 from fsmsynth.logic.cube import Cube
 from fsmsynth.version import __version__
 from fsmsynth.writers.rtl_machine import RtlMachine, RtlState
-from fsmsynth.writers.rtl_verilog import held_conditions, state_constant
-from fsmsynth.writers.vhdl import check_vhdl_names, port_lines
+from fsmsynth.writers.rtl_verilog import held_conditions
+from fsmsynth.writers.vhdl import check_vhdl_names, port_lines, register_process
 
 
 def _literals(cube: Cube, signals: tuple[str, ...]) -> list[str]:
@@ -69,7 +69,7 @@ def _state_case(m: RtlMachine, state: RtlState, suffix: str, moore_words: bool) 
             if state.word and moore_words else [])
     chain = state.branches
     for k, branch in enumerate(chain):
-        inner = [f"state_next <= {state_constant(branch.to)};"]
+        inner = [f"state_next <= {m.constant(branch.to)};"]
         inner += _assignments(branch.word, m.outputs, suffix) if branch.word else []
         if state.last_is_else and len(chain) == 1:
             body += inner
@@ -80,7 +80,7 @@ def _state_case(m: RtlMachine, state: RtlState, suffix: str, moore_words: bool) 
         body += [f"  {x}" for x in inner]
         if k == len(chain) - 1:
             body.append("end if;")
-    return ([f"when {state_constant(state.name)} =>  -- {state.name}{where}"]
+    return ([f"when {m.constant(state.name)} =>  -- {state.name}{where}"]
             + [f"  {x}" for x in body or ["null;  -- stays"]])
 
 
@@ -95,21 +95,20 @@ def _logic(m: RtlMachine, suffix: str) -> list[str]:
     policy = ("unused codes go to reset (unused = \"safe\"), in the netlist"
               if m.unused_safe else "unused codes are don't cares (unused = \"dont-care\")")
     lines += [f"    when others =>  -- every value is a state; {policy}",
-              f"      state_next <= {state_constant(m.reset)};", "  end case;"]
+              f"      state_next <= {m.constant(m.reset)};", "  end case;"]
     if not moore_words:
         lines.append("  case state_next is  -- registered Moore outputs: those of the next state")
         for state in m.states:
             assert state.word is not None
             body = _assignments(state.word, m.outputs, "_d")
-            lines.append(f"    when {state_constant(state.name)} => "
+            lines.append(f"    when {m.constant(state.name)} => "
                          + (" ".join(body) if body else "null;"))
         lines += ["    when others => null;", "  end case;"]
     return lines + ["end process;"]
 
 
 def _registers(m: RtlMachine) -> list[str]:
-    clock = "rising_edge(clk)" if m.edge == "rising" else "falling_edge(clk)"
-    on_reset = [f"state <= {state_constant(m.reset)};"]
+    on_reset = [f"state <= {m.constant(m.reset)};"]
     on_edge = ["state <= state_next;"]
     if m.registered:
         word, at = m.reset_word(), 0
@@ -119,29 +118,29 @@ def _registers(m: RtlMachine) -> list[str]:
             on_edge.append(f"{port} <= {port}_d;")
             at += n
     what = "State register" + (" and output registers" if m.registered else "")
-    return [f"-- {what}: {m.edge} edge, asynchronous active-high reset to {m.reset}.",
-            "registers : process (clk, rst)", "begin", "  if rst = '1' then",
-            *(f"    {x}" for x in on_reset), f"  elsif {clock} then",
-            *(f"    {x}" for x in on_edge), "  end if;", "end process;"]
+    return [f"-- {what}: {m.edge} edge, {m.clocking.describe()}; reset to {m.reset}.",
+            *register_process("registers", m.edge, m.clocking, on_reset, on_edge)]
 
 
 def assertion_lines(m: RtlMachine, state: str = "state",
-                    code: Callable[[str], str] = state_constant) -> list[str]:
+                    code: Callable[[str], str] | None = None) -> list[str]:
     """Each invariant as an ``assert`` in a clocked process, out of reset, between
     ``pragma translate_off``/``translate_on``; ``state`` and ``code`` as for
     :func:`fsmsynth.writers.rtl_verilog.assertion_lines`."""
     signals = (*m.inputs, *m.outputs)
+    named = code or m.constant
     lines: list[str] = []
-    clock = "rising_edge(clk)" if m.edge == "rising" else "falling_edge(clk)"
+    c = m.clocking
+    clock = f"{'rising' if m.edge == 'rising' else 'falling'}_edge({c.clock})"
     for inv in m.invariants:
-        held = held_conditions(inv, signals, lambda s: f"{state} /= {code(s)}",
+        held = held_conditions(inv, signals, lambda s: f"{state} /= {named(s)}",
                                expression, " or ")
         if not held:
             continue
         text = inv.text.replace('"', "'")
         lines += [f"-- invariant {inv.number}: {inv.text}",
-                  f"invariant_{inv.number} : process (clk)", "begin",
-                  f"  if {clock} and rst = '0' then",
+                  f"invariant_{inv.number} : process ({c.clock})", "begin",
+                  f"  if {clock} and {c.reset} = '{c.released}' then",
                   f"    assert {' and '.join(held)}",
                   f"      report \"invariant {inv.number} broken: {text}\" severity error;",
                   "  end if;", "end process;"]
@@ -154,7 +153,7 @@ def assertion_lines(m: RtlMachine, state: str = "state",
 def write_rtl_vhdl(m: RtlMachine, *, header: str = "") -> str:
     """The RTL VHDL text of ``m``; names VHDL cannot take are refused as for the
     structural VHDL."""
-    check_vhdl_names(m.name, m.inputs, m.outputs)
+    check_vhdl_names(m.name, m.inputs, m.outputs, m.clocking)
     suffix = "_d" if m.registered else ""
     codes = " ".join(f"{s.code:0{m.width}b}" for s in m.states)
     lines = [f"-- generated by fsmsynth {__version__}; do not edit, regenerate it from the "
@@ -163,12 +162,13 @@ def write_rtl_vhdl(m: RtlMachine, *, header: str = "") -> str:
              "structural netlist implements it).",
              *(f"-- {h}" for h in header.splitlines()),
              "library ieee;", "use ieee.std_logic_1164.all;", "",
-             f"entity {m.name} is", "  port (", *port_lines(m.inputs, m.outputs), "  );",
+             f"entity {m.name} is", "  port (", *port_lines(m.inputs, m.outputs, m.clocking),
+             "  );",
              f"end entity {m.name};", "", f"architecture rtl of {m.name} is",
              f"  -- States and their codes ({m.method} encoding): "
              + ", ".join(f"{s.name}={s.code:0{m.width}b}" for s in m.states) + ".",
              "  type state_type is ("
-             + ", ".join(state_constant(s.name) for s in m.states) + ");",
+             + ", ".join(m.constant(s.name) for s in m.states) + ");",
              "  attribute enum_encoding : string;",
              f"  attribute enum_encoding of state_type : type is \"{codes}\";",
              "  signal state, state_next : state_type;"]

@@ -68,7 +68,7 @@ def write_spec(table: StateTable, *, comment: str = "", guards: bool = False) ->
         *entries,
         "]",
     ]
-    out += _invariants(table) + _state_outputs(table)
+    out += _invariants(table) + _state_outputs(table) + _clocking(table)
     return "\n".join(out) + "\n"
 
 
@@ -97,6 +97,15 @@ def _state_outputs(table: StateTable) -> list[str]:
     return ["", "[state_outputs]"] + [
         f"{_quote(s)} = {_values(table.output_cube_of(s), table.outputs, every=True)}"
         for s in table.states]
+
+
+def _clocking(table: StateTable) -> list[str]:
+    c = table.clocking
+    if c is None:
+        return []
+    pairs = [("clock", c.clock), ("reset", c.reset), ("reset_style", c.reset_style),
+             ("reset_active", c.reset_active)] + ([("enable", c.enable)] if c.enable else [])
+    return ["", "[clocking]"] + [f"{k} = {_quote(v)}" for k, v in pairs if v is not None]
 
 
 def _invariants(table: StateTable) -> list[str]:
@@ -168,4 +177,4 @@ def _guarded(table: StateTable) -> list[str] | None:
         *entries,
         "]",
     ]
-    return out + _invariants(table) + _state_outputs(table)
+    return out + _invariants(table) + _state_outputs(table) + _clocking(table)

@@ -17,6 +17,7 @@ from collections.abc import Sequence
 from fsmsynth.base.errors import TableError
 from fsmsynth.base.names import RESERVED_PREFIX, ports_of, split_bit
 from fsmsynth.map.realize import characteristic_sop
+from fsmsynth.model.clocking import DEFAULT_CLOCKING, Clocking
 from fsmsynth.model.storage import Storage
 from fsmsynth.model.table import StateTable
 from fsmsynth.stages.netlist import Gate, Netlist
@@ -53,10 +54,17 @@ def vhdl_problem(name: str) -> str | None:
     return None
 
 
-def check_vhdl_names(name: str, inputs: Sequence[str], outputs: Sequence[str]) -> None:
+def check_vhdl_names(name: str, inputs: Sequence[str], outputs: Sequence[str],
+                     clocking: Clocking = DEFAULT_CLOCKING) -> None:
     """Raise :class:`~fsmsynth.base.errors.TableError` naming the first name VHDL cannot take
     (ports by their base name; ``Start`` and ``start`` are one name in VHDL)."""
-    seen: dict[str, str] = {"clk": "clk", "rst": "rst"}
+    seen: dict[str, str] = {}
+    for port in clocking.ports:
+        problem = vhdl_problem(port)
+        if problem or port.lower() in seen:
+            raise TableError(f"port {port!r} {problem or 'is named twice (VHDL ignores case)'}"
+                             "; rename it for VHDL output", name=port)
+        seen[port.lower()] = port
     for role, names in (("machine", [name]), ("input", [p for p, _w in ports_of(inputs)]),
                         ("output", [p for p, _w in ports_of(outputs)])):
         for n in names:
@@ -85,9 +93,10 @@ def _header(comment: str) -> list[str]:
     return lines
 
 
-def port_lines(table_inputs: Sequence[str], table_outputs: Sequence[str]) -> list[str]:
-    """The entity's port lines: ``clk``, ``rst``, the inputs, then the outputs."""
-    decls = ["clk : in std_logic", "rst : in std_logic"]
+def port_lines(table_inputs: Sequence[str], table_outputs: Sequence[str],
+               clocking: Clocking = DEFAULT_CLOCKING) -> list[str]:
+    """The entity's port lines: clock, reset (and enable), the inputs, then the outputs."""
+    decls = [f"{p} : in std_logic" for p in clocking.ports]
     for direction, names in (("in", table_inputs), ("out", table_outputs)):
         for port, width in ports_of(names):
             kind = "std_logic" if width is None else f"std_logic_vector({width - 1} downto 0)"
@@ -119,6 +128,28 @@ def _gate(g: Gate) -> str:
     return f"  {_net(g.output)} <= {value};{cell}"
 
 
+def register_process(label: str, edge: str, c: Clocking, reset: list[str],
+                     load: list[str]) -> list[str]:
+    """A clocked process under the conventions ``c``: ``reset`` statements when the reset
+    acts (at once, or at the edge), else ``load`` at the edge (while the enable is 1)."""
+    clock = f"{'rising' if edge == 'rising' else 'falling'}_edge({c.clock})"
+    active = f"{c.reset} = '{c.asserted}'"
+    guarded = ([f"elsif {c.enable} = '1' then", *(f"  {x}" for x in load)] if c.enable
+               else ["else", *(f"  {x}" for x in load)])
+    if c.reset_style == "async":
+        body = [f"if {active} then", *(f"  {x}" for x in reset), f"elsif {clock} then"]
+        body += ([f"  if {c.enable} = '1' then", *(f"    {x}" for x in load), "  end if;"]
+                 if c.enable else [f"  {x}" for x in load])
+        body.append("end if;")
+        sensitivity = f"{c.clock}, {c.reset}"
+    else:
+        body = [f"if {clock} then", f"  if {active} then", *(f"    {x}" for x in reset),
+                *(f"  {x}" for x in guarded), "  end if;", "end if;"]
+        sensitivity = c.clock
+    return [f"{label} : process ({sensitivity}) is", "begin", *(f"  {x}" for x in body),
+            "end process;"]
+
+
 def _next(storage: Storage, pins: dict[str, str], q: str) -> str:
     """The storage kind's next state as a VHDL expression over its pin nets and ``q``."""
     names = [_net(pins[p]) for p in storage.pins] + [q]
@@ -143,11 +174,12 @@ def write_vhdl(netlist: Netlist, *, header: str = "", checks: Sequence[str] = ()
         For a port or machine name VHDL cannot take, naming it.
     """
     outputs = [p for p, _n in netlist.outputs]
-    check_vhdl_names(netlist.name, netlist.inputs, outputs)
+    c = netlist.clocking
+    check_vhdl_names(netlist.name, netlist.inputs, outputs, c)
     ports = set(netlist.inputs) | set(outputs)
     lines = _header(header) + [
         "library ieee;", "use ieee.std_logic_1164.all;", "use ieee.numeric_std.all;", "",
-        f"entity {netlist.name} is", "  port (", *port_lines(netlist.inputs, outputs),
+        f"entity {netlist.name} is", "  port (", *port_lines(netlist.inputs, outputs, c),
         "  );", f"end entity {netlist.name};", "",
         f"architecture structural of {netlist.name} is"]
     internal = [ff.q for ff in netlist.flip_flops] + [g.output for g in netlist.gates
@@ -166,14 +198,15 @@ def write_vhdl(netlist: Netlist, *, header: str = "", checks: Sequence[str] = ()
         groups.setdefault((ff.storage.name, ff.edge), []).append(ff)
     for (kind, edge), flops in sorted(groups.items()):
         storage = flops[0].storage  # type: ignore[attr-defined]
-        lines += ["", f"  -- {storage.title}s: {storage.equation}; {edge} edge, asynchronous "
-                  "active-high reset.", f"  {kind}_{edge}_flip_flops : process (clk, rst) is",
-                  "  begin", "    if rst = '1' then"]
-        lines += [f"      {ff.q} <= '{ff.reset_value}';" for ff in flops]  # type: ignore[attr-defined]
-        lines.append(f"    elsif {'rising' if edge == 'rising' else 'falling'}_edge(clk) then")
-        lines += [f"      {ff.q} <= {_next(ff.storage, dict(ff.pins), ff.q)};"  # type: ignore[attr-defined]
-                  for ff in flops]
-        lines += ["    end if;", "  end process;"]
+        style = "asynchronous" if c.reset_style == "async" else "synchronous"
+        lines += ["", f"  -- {storage.title}s: {storage.equation}; {edge} edge, {style} "
+                  f"active-{c.reset_active} reset" + (f", held while {c.enable} is 0."
+                                                      if c.enable else ".")]
+        lines += [f"  {x}" for x in register_process(
+            f"{kind}_{edge}_flip_flops", edge, c,
+            [f"{ff.q} <= '{ff.reset_value}';" for ff in flops],  # type: ignore[attr-defined]
+            [f"{ff.q} <= {_next(ff.storage, dict(ff.pins), ff.q)};"  # type: ignore[attr-defined]
+             for ff in flops])]
     lines.append("")
     lines += [f"  {_net(port)} <= {_net(net)};" for port, net in netlist.outputs
               if net != port]
@@ -182,18 +215,23 @@ def write_vhdl(netlist: Netlist, *, header: str = "", checks: Sequence[str] = ()
     return "\n".join(lines)
 
 
-def write_vhdl_testbench(table: StateTable, *, period: int = 10) -> str:
+def write_vhdl_testbench(table: StateTable, *, period: int = 10,
+                         clocking: Clocking = DEFAULT_CLOCKING) -> str:
     """A self-checking VHDL testbench from the table alone, the same checks as the Verilog
-    one (:func:`fsmsynth.writers.testbench.write_testbench`): ``report ... severity
-    failure`` on a mismatch, ``PASS: n checks`` otherwise."""
-    check_vhdl_names(table.name, table.inputs, table.outputs)
+    one (:func:`fsmsynth.writers.testbench.write_testbench`, ``clocking`` as there):
+    ``report ... severity failure`` on a mismatch, ``PASS: n checks`` otherwise."""
+    c = clocking
+    check_vhdl_names(table.name, table.inputs, table.outputs, c)
     half = max(2, period // 2)
     in_ports, out_ports = ports_of(table.inputs), ports_of(table.outputs)
     lines = [f"-- Self-checking testbench for {table.name}: generated by fsmsynth from the "
              "state table.", "library ieee;", "use ieee.std_logic_1164.all;", "",
              f"entity {table.name}_tb is", f"end entity {table.name}_tb;", "",
              f"architecture bench of {table.name}_tb is",
-             "  signal clk : std_logic := '0';", "  signal rst : std_logic := '0';"]
+             f"  signal {c.clock} : std_logic := '0';",
+             f"  signal {c.reset} : std_logic := '{c.released}';"]
+    if c.enable:
+        lines.append(f"  signal {c.enable} : std_logic := '1';")
     for port, width in in_ports:
         kind = ("std_logic := '0'" if width is None else
                 f"std_logic_vector({width - 1} downto 0) := (others => '0')")
@@ -201,7 +239,7 @@ def write_vhdl_testbench(table: StateTable, *, period: int = 10) -> str:
     for port, width in out_ports:
         kind = "std_logic" if width is None else f"std_logic_vector({width - 1} downto 0)"
         lines.append(f"  signal {port} : {kind};")
-    maps = ", ".join(f"{p} => {p}" for p in ["clk", "rst", *(p for p, _w in in_ports + out_ports)])
+    maps = ", ".join(f"{p} => {p}" for p in [*c.ports, *(p for p, _w in in_ports + out_ports)])
     lines += ["begin", f"  dut : entity work.{table.name} port map ({maps});", "",
               "  stimulus : process is", "    variable errors : natural := 0;",
               "    variable checks : natural := 0;", "  begin"]
@@ -216,11 +254,17 @@ def write_vhdl_testbench(table: StateTable, *, period: int = 10) -> str:
                 f"\"MISMATCH test {test} cycle {cycle}: {name} = \" & "
                 f"std_logic'image({net}) & \", expected {want}\"; end if;"]
 
+    edge = f"{c.clock} <= '1'; wait for {half} ns; {c.clock} <= '0'; wait for 1 ns;"
+    reset = (f"    {c.reset} <= '{c.asserted}'; wait for 1 ns; "
+             + ("" if c.reset_style == "async" else edge + " ")
+             + f"{c.reset} <= '{c.released}'; wait for 1 ns;")
     lines += bench_body(table, BenchSyntax(
         comment=lambda text: [f"    -- {text}"],
-        reset=lambda: ["    rst <= '1'; wait for 1 ns; rst <= '0'; wait for 1 ns;"],
+        reset=lambda: [reset],
         drive=drive, check=check,
-        clock=lambda: [f"    clk <= '1'; wait for {half} ns; clk <= '0'; wait for 1 ns;"]))
+        clock=lambda: [f"    {edge}"],
+        hold=lambda: [f"    {c.enable} <= '0'; {edge} {c.enable} <= '1';"]),
+        hold=c.enable is not None)
     lines += ["    if errors /= 0 then", "      report \"FAIL: \" & integer'image(errors) & "
               "\" of \" & integer'image(checks) & \" checks failed\" severity failure;",
               "    end if;", "    report \"PASS: \" & integer'image(checks) & \" checks\";",

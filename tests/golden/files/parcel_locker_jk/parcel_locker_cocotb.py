@@ -24,6 +24,8 @@ ROWS = {'locked': [('1--', 'unlocked', '10'), ('0--', 'locked', '00')], 'unlocke
 STATE_OUTPUTS = {}
 STEPS = [('comment', 'test 1: state locked, inputs 100'), ('reset',), ('drive', '100'), ('check', 1, 1, '10'), ('clock',), ('drive', '000'), ('check', 1, 2, '10'), ('comment', 'test 2: state locked, inputs 111'), ('reset',), ('drive', '111'), ('check', 2, 1, '10'), ('clock',), ('drive', '000'), ('check', 2, 2, '10'), ('comment', 'test 3: state locked, inputs 000'), ('reset',), ('drive', '000'), ('check', 3, 1, '00'), ('clock',), ('drive', '100'), ('check', 3, 2, '10'), ('comment', 'test 4: state locked, inputs 011'), ('reset',), ('drive', '011'), ('check', 4, 1, '00'), ('clock',), ('drive', '100'), ('check', 4, 2, '10'), ('comment', 'test 5: state unlocked, inputs 000'), ('reset',), ('drive', '100'), ('check', 5, 1, '10'), ('clock',), ('drive', '000'), ('check', 5, 2, '10'), ('clock',), ('drive', '010'), ('check', 5, 3, '00'), ('comment', 'test 6: state unlocked, inputs 101'), ('reset',), ('drive', '100'), ('check', 6, 1, '10'), ('clock',), ('drive', '101'), ('check', 6, 2, '10'), ('clock',), ('drive', '010'), ('check', 6, 3, '00'), ('comment', 'test 7: state unlocked, inputs 010'), ('reset',), ('drive', '100'), ('check', 7, 1, '10'), ('clock',), ('drive', '010'), ('check', 7, 2, '10'), ('clock',), ('drive', '000'), ('check', 7, 3, '10'), ('comment', 'test 8: state unlocked, inputs 110'), ('reset',), ('drive', '100'), ('check', 8, 1, '10'), ('clock',), ('drive', '110'), ('check', 8, 2, '10'), ('clock',), ('drive', '000'), ('check', 8, 3, '10'), ('comment', 'test 9: state unlocked, inputs 011'), ('reset',), ('drive', '100'), ('check', 9, 1, '10'), ('clock',), ('drive', '011'), ('check', 9, 2, '00'), ('clock',), ('drive', '100'), ('check', 9, 3, '10'), ('comment', 'test 10: state unlocked, inputs 111'), ('reset',), ('drive', '100'), ('check', 10, 1, '10'), ('clock',), ('drive', '111'), ('check', 10, 2, '00'), ('clock',), ('drive', '100'), ('check', 10, 3, '10'), ('comment', 'test 11: state open, inputs 010'), ('reset',), ('drive', '100'), ('check', 11, 1, '10'), ('clock',), ('drive', '000'), ('check', 11, 2, '10'), ('clock',), ('drive', '010'), ('check', 11, 3, '00'), ('clock',), ('drive', '100'), ('check', 11, 4, '10'), ('comment', 'test 12: state open, inputs 111'), ('reset',), ('drive', '100'), ('check', 12, 1, '10'), ('clock',), ('drive', '000'), ('check', 12, 2, '10'), ('clock',), ('drive', '111'), ('check', 12, 3, '00'), ('clock',), ('drive', '100'), ('check', 12, 4, '10'), ('comment', 'test 13: state open, inputs 000'), ('reset',), ('drive', '100'), ('check', 13, 1, '10'), ('clock',), ('drive', '000'), ('check', 13, 2, '10'), ('clock',), ('drive', '000'), ('check', 13, 3, '00'), ('clock',), ('drive', '010'), ('check', 13, 4, '00'), ('comment', 'test 14: state open, inputs 100'), ('reset',), ('drive', '100'), ('check', 14, 1, '10'), ('clock',), ('drive', '000'), ('check', 14, 2, '10'), ('clock',), ('drive', '100'), ('check', 14, 3, '00'), ('clock',), ('drive', '010'), ('check', 14, 4, '00'), ('comment', 'test 15: state open, inputs 001'), ('reset',), ('drive', '100'), ('check', 15, 1, '10'), ('clock',), ('drive', '000'), ('check', 15, 2, '10'), ('clock',), ('drive', '001'), ('check', 15, 3, '01'), ('clock',), ('drive', '010'), ('check', 15, 4, '00'), ('comment', 'test 16: state open, inputs 101'), ('reset',), ('drive', '100'), ('check', 16, 1, '10'), ('clock',), ('drive', '000'), ('check', 16, 2, '10'), ('clock',), ('drive', '101'), ('check', 16, 3, '01'), ('clock',), ('drive', '010'), ('check', 16, 4, '00'), ('comment', 'test 17: state warn, inputs 010'), ('reset',), ('drive', '100'), ('check', 17, 1, '10'), ('clock',), ('drive', '000'), ('check', 17, 2, '10'), ('clock',), ('drive', '001'), ('check', 17, 3, '01'), ('clock',), ('drive', '010'), ('check', 17, 4, '00'), ('clock',), ('drive', '100'), ('check', 17, 5, '10'), ('comment', 'test 18: state warn, inputs 111'), ('reset',), ('drive', '100'), ('check', 18, 1, '10'), ('clock',), ('drive', '000'), ('check', 18, 2, '10'), ('clock',), ('drive', '001'), ('check', 18, 3, '01'), ('clock',), ('drive', '111'), ('check', 18, 4, '00'), ('clock',), ('drive', '100'), ('check', 18, 5, '10'), ('comment', 'test 19: state warn, inputs 000'), ('reset',), ('drive', '100'), ('check', 19, 1, '10'), ('clock',), ('drive', '000'), ('check', 19, 2, '10'), ('clock',), ('drive', '001'), ('check', 19, 3, '01'), ('clock',), ('drive', '000'), ('check', 19, 4, '01'), ('clock',), ('drive', '010'), ('check', 19, 5, '00'), ('comment', 'test 20: state warn, inputs 101'), ('reset',), ('drive', '100'), ('check', 20, 1, '10'), ('clock',), ('drive', '000'), ('check', 20, 2, '10'), ('clock',), ('drive', '001'), ('check', 20, 3, '01'), ('clock',), ('drive', '101'), ('check', 20, 4, '01'), ('clock',), ('drive', '010'), ('check', 20, 5, '00')]
 HALF = 5
+CLOCK, RESET_PORT, ENABLE = 'clk', 'rst', None
+ASSERTED, RELEASED, SYNC_RESET = 1, 0, False
 
 
 def lookup(state, word):
@@ -59,23 +61,39 @@ def mismatches(dut, cube):
 
 
 async def reset(dut):
-    dut.rst.value = 1
+    getattr(dut, RESET_PORT).value = ASSERTED
     await Timer(1, "ns")
-    dut.rst.value = 0
+    if SYNC_RESET:
+        await clock(dut)
+    getattr(dut, RESET_PORT).value = RELEASED
     await Timer(1, "ns")
 
 
 async def clock(dut):
-    dut.clk.value = 1
+    getattr(dut, CLOCK).value = 1
     await Timer(HALF, "ns")
-    dut.clk.value = 0
+    getattr(dut, CLOCK).value = 0
     await Timer(1, "ns")
+
+
+async def hold(dut):
+    """A clock edge with the enable at 0: the state must not move."""
+    getattr(dut, ENABLE).value = 0
+    await clock(dut)
+    getattr(dut, ENABLE).value = 1
+
+
+def start(dut):
+    getattr(dut, CLOCK).value = 0
+    getattr(dut, RESET_PORT).value = RELEASED
+    if ENABLE:
+        getattr(dut, ENABLE).value = 1
 
 
 @cocotb.test()
 async def table_checks(dut):
     """Every check of the table-derived bench, through the simulator."""
-    dut.clk.value = 0
+    start(dut)
     errors, checks, test = [], 0, ""
     for step in STEPS:
         if step[0] == "comment":
@@ -85,6 +103,8 @@ async def table_checks(dut):
         elif step[0] == "drive":
             drive(dut, step[1])
             await Timer(HALF - 1, "ns")
+        elif step[0] == "hold":
+            await hold(dut)
         elif step[0] == "check":
             checks += sum(1 for c in step[3] if c != "-")
             errors += [(test, step[2], *m) for m in mismatches(dut, step[3])]
@@ -100,7 +120,7 @@ async def random_against_the_table(dut):
     1), compared with the table's own model; back to reset where the table says nothing."""
     rng = random.Random(int(os.environ.get("FSMSYNTH_SEED", "1")))
     cycles = int(os.environ.get("COCOTB_CYCLES", "500"))
-    dut.clk.value = 0
+    start(dut)
     await reset(dut)
     state, checks = RESET, 0
     for cycle in range(cycles):
