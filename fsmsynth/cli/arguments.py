@@ -216,6 +216,9 @@ def parser() -> argparse.ArgumentParser:
     diag = sub.add_parser("diagram", help="state diagram or netlist schematic (Graphviz DOT)")
     diag.add_argument("spec", help="state table: .toml spec or .csv table")
     table_settings(diag)
+    diag.add_argument("--focus", type=list_arg, metavar="STATE[,STATE]",
+                      help="draw these states, their neighbours and the edges between them "
+                           "(a large machine a part at a time)")
     diag.add_argument("--netlist", action="store_true",
                       help="draw the synthesized netlist instead of the state diagram")
     diag.add_argument("--storage", default="d", type=str, help="for --netlist (default d)")

@@ -11,7 +11,7 @@ from pathlib import Path
 
 from fsmsynth.base.errors import OptionError
 from fsmsynth.checks.invariants import check_invariants, constrain_outputs, kept_by_reduction
-from fsmsynth.checks.spec_warnings import warning_lines
+from fsmsynth.checks.spec_warnings import spec_warnings, warning_lines
 from fsmsynth.checks.table_check import check_table
 from fsmsynth.cli.arguments import encoding_arg, read_table_arg, storage_arg
 from fsmsynth.cli.printing import accepted_arg, minimization_lines
@@ -66,7 +66,8 @@ def diagram_command(args: argparse.Namespace) -> int:
         design = synthesize(table, storage_arg(args.storage), encoding_arg(args.encoding))
         text = write_netlist_dot(design.netlist)
     else:
-        text = write_state_diagram(table)
+        text = write_state_diagram(table, warnings=spec_warnings(table),
+                                   focus=tuple(args.focus or ()))
     if not args.out:
         print(text, end="")
         return 0

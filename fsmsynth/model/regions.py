@@ -79,3 +79,25 @@ def completely_specified(regions: StateRegions) -> bool:
     """Whether the state has a next state and every output under every input."""
     return (regions.specified.is_one()
             and all((a | b).is_one() for a, b in zip(regions.out_on, regions.out_off)))
+
+
+def pieces(here: StateRegions, n_out: int) -> list[tuple[Any, str | None, str]]:
+    """A state's input points split by what the table says there: (points, next state or
+    ``None``, output word of the first ``n_out`` outputs with ``-`` for a don't care)."""
+    found: list[tuple[Any, str | None, str]] = [(bdd.ONE, None, "")]
+    for nxt, points in here.next:
+        split = []
+        for p, n, w in found:
+            for part, to in ((p & points, nxt), (p & ~points, n)):
+                if not part.is_zero():
+                    split.append((part, to, w))
+        found = split
+    for o in range(n_out):
+        split = []
+        for p, n, w in found:
+            free = p & ~here.out_on[o] & ~here.out_off[o]
+            for part, ch in ((p & here.out_on[o], "1"), (p & here.out_off[o], "0"), (free, "-")):
+                if not part.is_zero():
+                    split.append((part, n, w + ch))
+        found = split
+    return found

@@ -21,35 +21,13 @@ from typing import Any
 
 from fsmsynth.base.frozen import FrozenMap
 from fsmsynth.logic import bdd
-from fsmsynth.model.regions import state_regions
+from fsmsynth.model.regions import pieces, state_regions
 from fsmsynth.model.table import StateTable
 from fsmsynth.stages.encode import Encoding
 
 
 def _word(out: str | None) -> str:
     return (out or "").replace("-", "0")
-
-
-def _pieces(here: Any, n_out: int) -> list[tuple[Any, str | None, str]]:
-    """A state's input points split by (next state, output word), with ``-`` for a
-    don't-care output bit."""
-    pieces: list[tuple[Any, str | None, str]] = [(bdd.ONE, None, "")]
-    for nxt, points in here.next:
-        split = []
-        for p, n, w in pieces:
-            for part, to in ((p & points, nxt), (p & ~points, n)):
-                if not part.is_zero():
-                    split.append((part, to, w))
-        pieces = split
-    for o in range(n_out):
-        split = []
-        for p, n, w in pieces:
-            free = p & ~here.out_on[o] & ~here.out_off[o]
-            for part, ch in ((p & here.out_on[o], "1"), (p & here.out_off[o], "0"), (free, "-")):
-                if not part.is_zero():
-                    split.append((part, n, w + ch))
-        pieces = split
-    return pieces
 
 
 def _loads(state: str, here: Any, n_out: int, keep: bool) -> list[tuple[Any, str | None, str]]:
@@ -60,7 +38,7 @@ def _loads(state: str, here: Any, n_out: int, keep: bool) -> list[tuple[Any, str
     valid choice for a don't care).  Don't-care output bits become 0, or with ``keep`` stay
     ``-``; pieces that then say the same are joined."""
     joined: dict[tuple[str | None, str], Any] = {}
-    for points, nxt, word in _pieces(here, n_out):
+    for points, nxt, word in pieces(here, n_out):
         if nxt is None and word.strip("-"):
             nxt = state
         key = (nxt, word if keep else _word(word))

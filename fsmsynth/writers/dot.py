@@ -1,4 +1,5 @@
-"""Graphviz DOT text: the state diagram of a table and a schematic of a netlist.
+"""Graphviz DOT text: the state diagram of a table, in the words of its spec (guards over
+named inputs, outputs by name), and a schematic of a netlist.
 
 The text is always produced; :func:`render` turns it into SVG or PNG when Graphviz's
 ``dot`` program is installed.
@@ -9,9 +10,16 @@ from __future__ import annotations
 import json
 import shutil
 import subprocess
+from collections.abc import Sequence
 from pathlib import Path
+from typing import Any
 
 from fsmsynth.base.errors import OptionError
+from fsmsynth.base.names import did_you_mean, ports_of
+from fsmsynth.checks.spec_warnings import SpecWarning, reachable_states
+from fsmsynth.language.guards import short_guard
+from fsmsynth.logic import bdd
+from fsmsynth.model.regions import StateRegions, pieces, state_regions
 from fsmsynth.model.table import StateTable
 from fsmsynth.stages.netlist import Netlist
 
@@ -20,37 +28,164 @@ def _q(text: str) -> str:
     return json.dumps(text)
 
 
-def write_state_diagram(table: StateTable) -> str:
-    """State diagram: one node per state (the reset state marked by an arrow from nowhere),
-    one edge per (state, next state, outputs) labelled with its input cubes.
+def write_state_diagram(table: StateTable, *, warnings: Sequence[SpecWarning] = (),
+                        focus: Sequence[str] = ()) -> str:
+    """State diagram in the designer's words: one node per state, one edge per (state,
+    next state) pair, labelled with the conditions (guards over the named inputs and
+    vectors, minimized per state) and the outputs each sets by name (``pump=1 level=3``;
+    outputs at 0 are left out).
 
-    Mealy edges read ``inputs / outputs``; Moore nodes carry their outputs.  Cubes list the
-    inputs in declared order (named in the graph label); rows whose next state is a don't
-    care are drawn as dashed edges to a ``?`` node.
+    Moore nodes carry their outputs.  A transition every state takes alike (an emergency
+    stop) is drawn once, from an ``every state`` box, and left out of the states' own
+    conditions, which are tried after it.  The reset state has an arrow from nowhere;
+    unreachable states are grey and dashed; states some warning names are orange, with the
+    warning in their tooltip.  Open next states go dashed to a ``?`` node.
+
+    A machine of many states reads best a part at a time: with ``focus`` only those states,
+    the states they go to and the states that go to them are drawn, with the edges into and
+    out of the focus states (neighbours are drawn grey).
     """
-    title = (f"{table.name}: inputs {' '.join(table.inputs)} / "
-             f"outputs {' '.join(table.outputs)}")
+    for state in focus:
+        if state not in table.states:
+            raise OptionError(f"focus: no state {state!r}{did_you_mean(state, table.states)}")
+    var = bdd.variables(len(table.inputs))
+    regions = state_regions(table, var)
+    groups = {s: _groups(table, s, regions[s]) for s in table.states}
+    reachable = set(reachable_states(table))
+    every = _every_state(table, groups, reachable)
+    shown = _shown(table, groups, every, focus)
+
+    def drawn(a: str | None, b: str | None) -> bool:
+        return not focus or a in focus or b in focus
+    title = f"{table.name} ({table.kind})"
     lines = [f"digraph {_q(table.name)} {{", "  rankdir=LR;", f"  label={_q(title)};",
-             "  labelloc=t;", "  node [shape=circle, fontname=Helvetica];",
-             "  edge [fontname=Helvetica, fontsize=10];",
-             "  start [shape=point, label=\"\"];"]
-    for s in table.states:
-        label = s if table.kind == "mealy" else f"{s}\n{table.output_cube_of(s)}"
-        lines.append(f"  {_q(s)} [label={_q(label)}];")
-    lines.append(f"  start -> {_q(table.reset)};")
-    edges: dict[tuple[str, str | None, str], list[str]] = {}
-    for state, cube, nxt, out in table.rows:
-        key = (state, nxt, out if table.kind == "mealy" and out else "")
-        edges.setdefault(key, []).append(cube or "-")
-    if any(nxt is None for _s, nxt, _o in edges):
+             "  labelloc=t;", "  nodesep=0.35;", "  ranksep=0.6;",
+             "  node [shape=ellipse, fontname=Helvetica, fontsize=11];",
+             "  edge [fontname=Helvetica, fontsize=9];"]
+    warned: dict[str, list[str]] = {}
+    for w in warnings:
+        if w.subject in table.states:
+            warned.setdefault(w.subject, []).append(f"[{w.id}] {w.message}")
+    for s in (x for x in table.states if x in shown):
+        label = s
+        if table.kind == "moore":
+            said = _said(table.output_cube_of(s), table.outputs)
+            label += f"\n{said}" if said else ""
+        attrs = [f"label={_q(label)}"]
+        if s == table.reset:
+            attrs.append("peripheries=2")
+        if s not in reachable:
+            attrs += ["style=dashed", "color=grey50", "fontcolor=grey50"]
+        if s in warned:
+            attrs += ["color=darkorange", "penwidth=2", f"tooltip={_q(' '.join(warned[s]))}"]
+        if focus and s not in focus:
+            attrs += ["fontcolor=grey40", "color=grey60"]
+        lines.append(f"  {_q(s)} [{', '.join(attrs)}];")
+    if table.reset in shown:
+        lines += ["  start [shape=point, label=\"\"];", f"  start -> {_q(table.reset)};"]
+    open_next = False
+    if any(drawn(None, to) for to, _w in every):
+        lines.append("  every [shape=box, style=rounded, label=\"every state\"];")
+        for (to, word), points in every.items():
+            if not drawn(None, to):
+                continue
+            text = short_guard(points, bdd.ZERO, var, table.inputs)
+            lines.append(f"  every -> {_q(to)} [label={_q(_edge(text, word, table))}, "
+                         "style=bold];")
+    taken = bdd.ZERO
+    for points in every.values():
+        taken |= points
+    for s in (x for x in table.states if x in shown):
+        by_target: dict[str | None, list[str]] = {}
+        covered = bdd.ZERO
+        for points in groups[s].values():
+            covered |= points
+        free = taken | ~covered  # what every state does first, and what nothing specifies
+        for (nxt, word), points in groups[s].items():
+            own = points & ~taken
+            if own.is_zero() or not drawn(s, nxt):
+                continue
+            text = short_guard(own, free, var, table.inputs)
+            by_target.setdefault(nxt, []).append(_edge(text, word, table))
+        for nxt, labels in by_target.items():
+            target = _q(nxt) if nxt is not None else "unknown"
+            style = "" if nxt is not None else ", style=dashed"
+            open_next |= nxt is None
+            lines.append(f"  {_q(s)} -> {target} [label={_q(chr(10).join(labels))}{style}];")
+    if open_next:
         lines.append("  unknown [shape=plaintext, label=\"?\"];")
-    for (state, nxt, out), cubes in edges.items():
-        label = ", ".join(cubes) + (f" / {out}" if out else "")
-        target = _q(nxt) if nxt is not None else "unknown"
-        style = "" if nxt is not None else ", style=dashed"
-        lines.append(f"  {_q(state)} -> {target} [label={_q(label)}{style}];")
     lines.append("}")
     return "\n".join(lines) + "\n"
+
+
+def _shown(table: StateTable, groups: dict[str, dict[tuple[str | None, str], Any]],
+           every: dict[tuple[str, str], Any], focus: Sequence[str]) -> set[str]:
+    """The states to draw: all, or the focus states and their neighbours."""
+    if not focus:
+        return set(table.states)
+    shown = set(focus)
+    for s in table.states:
+        for nxt, _word in groups[s]:
+            if s in focus and nxt is not None:
+                shown.add(nxt)
+            if nxt in focus:
+                shown.add(s)
+    shown |= {to for to, _w in every if to in focus}
+    return shown
+
+
+def _said(word: str, outputs: tuple[str, ...]) -> str:
+    """``pump=1 level=3``: the outputs a word sets to something other than 0, by name
+    (free ones and zeros left out)."""
+    parts, at = [], 0
+    for port, width in ports_of(outputs):
+        chars = word[at:at + (width or 1)]
+        at += width or 1
+        if "1" in chars and "-" not in chars:
+            parts.append(f"{port}={int(chars, 2)}")
+        elif "1" in chars:
+            parts.append(f"{port}={chars}")
+    return " ".join(parts)
+
+
+def _edge(guard: str, word: str, table: StateTable) -> str:
+    said = _said(word, table.outputs) if table.kind == "mealy" else ""
+    return guard + (f" / {said}" if said else "")
+
+
+def _groups(table: StateTable, state: str, here: StateRegions) -> dict[tuple[str | None, str], Any]:
+    """A state's input points by (next state, output word), leaving out the points where
+    nothing is specified."""
+    found: dict[tuple[str | None, str], Any] = {}
+    n_out = len(table.outputs) if table.kind == "mealy" else 0
+    for points, nxt, word in pieces(here, n_out):
+        if nxt is None and set(word) <= {"-"}:
+            continue
+        found[nxt, word] = found[nxt, word] | points if (nxt, word) in found else points
+    return found
+
+
+def _every_state(table: StateTable, groups: dict[str, dict[tuple[str | None, str], Any]],
+                 reachable: set[str]) -> dict[tuple[str, str], Any]:
+    """Transitions every reachable state takes alike, when there are three states or more:
+    the same next state and outputs on the same input points in every state (the target may
+    add points of its own), which is what ``[[every_state]]`` entries say."""
+    states = [s for s in table.states if s in reachable]
+    if len(states) < 3:
+        return {}
+    found = {}
+    for key in groups[states[0]]:
+        if key[0] is None or not all(key in groups[s] for s in states):
+            continue
+        common = bdd.ONE
+        for s in states:
+            common &= groups[s][key]
+        # What every state does alike, and nothing more in any state but the target (whose
+        # own transitions to itself may say the same): not a coincidence of conditions.
+        alike = all((groups[s][key] ^ common).is_zero() for s in states if s != key[0])
+        if alike and not common.is_zero():
+            found[key] = common
+    return found  # type: ignore[return-value]
 
 
 _SHAPES = {"not": "invtriangle", "buf": "triangle", "and": "box", "or": "ellipse",

@@ -24,7 +24,7 @@ from fsmsynth.language.guards import compile_condition, short_cover
 from fsmsynth.logic import bdd
 from fsmsynth.logic.cube import Cube
 from fsmsynth.model.clocking import DEFAULT_CLOCKING, Clocking
-from fsmsynth.model.regions import state_regions
+from fsmsynth.model.regions import pieces, state_regions
 from fsmsynth.model.table import StateTable
 
 
@@ -112,18 +112,9 @@ def _branches(table: StateTable, state: str, regions: Any, var: list[Any]
     """A state's branches: its input points grouped by (next state, output word) after
     refinement; the group that is the default (stay, all outputs 0) needs no branch."""
     n_out = len(table.outputs) if table.kind == "mealy" else 0
-    pieces: list[tuple[Any, str | None, str]] = [(bdd.ONE, None, "")]
-    for nxt, points in regions.next:
-        pieces = [(part, to, w) for p, n, w in pieces
-                  for part, to in ((p & points, nxt), (p & ~points, n)) if not part.is_zero()]
-    for o in range(n_out):
-        pieces = [(part, n, w + ch) for p, n, w in pieces
-                  for part, ch in ((p & regions.out_on[o], "1"), (p & regions.out_off[o], "0"),
-                                   (p & ~regions.out_on[o] & ~regions.out_off[o], "-"))
-                  if not part.is_zero()]
     free = bdd.ZERO
     groups: dict[tuple[str, str], Any] = {}
-    for points, nxt, word in pieces:
+    for points, nxt, word in pieces(regions, n_out):
         if nxt is None and set(word) <= {"-"}:
             free |= points  # nothing specified: any branch may take these points
             continue
