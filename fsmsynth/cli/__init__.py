@@ -7,6 +7,7 @@ convert), :mod:`~fsmsynth.cli.table` (reduce, diagram, kmap, check) and
 
 from __future__ import annotations
 
+import importlib
 import os
 import signal
 import sys
@@ -14,15 +15,14 @@ from collections.abc import Sequence
 
 from fsmsynth.base.errors import FsmSynthError, VerificationError
 from fsmsynth.cli.arguments import parser
-from fsmsynth.cli.design import build_command, compare_command, convert_command, timing_command
-from fsmsynth.cli.many import build_all_command, sweep_command
-from fsmsynth.cli.table import (
-    check_command,
-    diagram_command,
-    kmap_command,
-    reduce_command,
-    rewrite_command,
-)
+
+COMMANDS = {
+    "build": "design", "timing": "design", "compare": "design", "convert": "design",
+    "reduce": "table", "diagram": "table", "kmap": "table", "check": "table",
+    "rewrite": "table", "build-all": "many", "sweep": "many",
+}
+"""Each command and the module of :mod:`fsmsynth.cli` that runs it, imported only when the
+command runs: ``--version`` and ``--help`` need none of the library."""
 
 
 def main(argv: Sequence[str] | None = None) -> int:
@@ -31,13 +31,9 @@ def main(argv: Sequence[str] | None = None) -> int:
     if extra:  # reported by the subcommand, with its usage (not the top level's)
         args.command_parser.error(f"unrecognized arguments: {' '.join(extra)}")
     try:
-        commands = {"build": build_command, "reduce": reduce_command,
-                    "compare": compare_command, "timing": timing_command,
-                    "diagram": diagram_command, "kmap": kmap_command,
-                    "convert": convert_command, "check": check_command,
-                    "build-all": build_all_command, "sweep": sweep_command,
-                    "rewrite": rewrite_command}
-        return commands[args.command](args)
+        module = importlib.import_module(f"fsmsynth.cli.{COMMANDS[args.command]}")
+        command = getattr(module, f"{args.command.replace('-', '_')}_command")
+        return int(command(args))
     except FsmSynthError as exc:
         print(f"fsmsynth: error: {exc}", file=sys.stderr)
         return 1 if isinstance(exc, VerificationError) else 2

@@ -5,20 +5,24 @@ from __future__ import annotations
 
 import argparse
 import math
+from typing import TYPE_CHECKING
 
+# Only modules that load nothing heavy: `fsmsynth --version` and `--help` build the parser
+# without the library (the readers are imported where an argument is read).
+from fsmsynth.base.choices import (
+    DEFAULT_ENCODINGS,
+    DEFAULT_STORAGES,
+    LOGIC_METHODS,
+    UNUSED_POLICIES,
+)
 from fsmsynth.base.errors import OptionError
-from fsmsynth.flows.compare import DEFAULT_ENCODINGS, DEFAULT_STORAGES
-from fsmsynth.flows.pipeline import UNUSED_POLICIES
-from fsmsynth.formats import read_table
-from fsmsynth.formats.cells_toml import read_cells
-from fsmsynth.formats.csv_table import SETTINGS
-from fsmsynth.formats.weights_toml import read_weights
-from fsmsynth.logic.cost import DEFAULT_WEIGHTS, CostWeights
-from fsmsynth.logic.cover import METHODS as LOGIC_METHODS
-from fsmsynth.map.targets import Target
 from fsmsynth.model.storage import STORAGES
-from fsmsynth.model.table import StateTable
 from fsmsynth.version import __version__
+
+if TYPE_CHECKING:
+    from fsmsynth.logic.cost import CostWeights
+    from fsmsynth.map.targets import Target
+    from fsmsynth.model.table import StateTable
 
 
 def encoding_arg(text: str) -> str | dict[str, str]:
@@ -45,6 +49,7 @@ def storage_arg(text: str) -> str | list[str]:
 
 def target_arg(text: str) -> str | Target:
     """A built-in target's name, or a cell library file (``.toml``)."""
+    from fsmsynth.formats.cells_toml import read_cells
     return read_cells(text) if text.lower().endswith(".toml") else text
 
 
@@ -57,6 +62,8 @@ def target_options(command: argparse.ArgumentParser) -> None:
 
 
 def weights_arg(path: str | None) -> CostWeights:
+    from fsmsynth.formats.weights_toml import read_weights
+    from fsmsynth.logic.cost import DEFAULT_WEIGHTS
     return read_weights(path) if path else DEFAULT_WEIGHTS
 
 
@@ -95,6 +102,8 @@ def table_settings(command: argparse.ArgumentParser) -> None:
 
 
 def read_table_arg(args: argparse.Namespace) -> StateTable:
+    from fsmsynth.formats import read_table
+    from fsmsynth.formats.csv_table import SETTINGS
     settings = {k: getattr(args, k) for k in SETTINGS if getattr(args, k) is not None}
     return read_table(args.spec, settings or None)
 

@@ -11,12 +11,12 @@ import math
 from dataclasses import dataclass, field, fields, replace
 from pathlib import Path
 
+from fsmsynth.base.choices import LOGIC_METHODS, UNUSED_POLICIES
 from fsmsynth.base.errors import OptionError
 from fsmsynth.base.frozen import FrozenMap
 from fsmsynth.checks.spec_warnings import accept_problem
-from fsmsynth.flows.pipeline import OUTPUT_KINDS, UNUSED_POLICIES
+from fsmsynth.flows.pipeline import OUTPUT_KINDS
 from fsmsynth.logic.cost import DEFAULT_WEIGHTS, CostWeights
-from fsmsynth.logic.cover import METHODS as LOGIC_METHODS
 from fsmsynth.map.targets import Target, target_named
 from fsmsynth.model.clocking import DEFAULT_CLOCKING, LEVELS, RESET_STYLES, Clocking
 from fsmsynth.model.storage import STORAGES

@@ -6,6 +6,7 @@ from collections.abc import Mapping, Sequence
 from concurrent.futures import Executor
 from dataclasses import dataclass, replace
 
+from fsmsynth.base.choices import DEFAULT_ENCODINGS, DEFAULT_STORAGES
 from fsmsynth.base.errors import OptionError
 from fsmsynth.flows.pipeline import synthesize
 from fsmsynth.formats.spec_toml import parse_spec
@@ -14,9 +15,6 @@ from fsmsynth.map.targets import Target, target_named
 from fsmsynth.model.storage import STORAGES
 from fsmsynth.model.table import StateTable
 from fsmsynth.writers.spec_toml import write_spec
-
-DEFAULT_ENCODINGS = ("binary", "gray", "one-hot")
-DEFAULT_STORAGES = (*sorted(STORAGES), "best")
 
 
 @dataclass(frozen=True, slots=True)

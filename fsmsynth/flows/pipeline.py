@@ -8,6 +8,7 @@ from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, replace
 from functools import partial
 
+from fsmsynth.base.choices import UNUSED_POLICIES
 from fsmsynth.base.errors import (
     InvariantError,
     OptionError,
@@ -40,6 +41,7 @@ from fsmsynth.stages.assign.scoring import (
     Scorer,
     SearchResult,
     min_width,
+    plain_codes_if_cheaper,
 )
 from fsmsynth.stages.encode import METHODS as ENCODE_METHODS
 from fsmsynth.stages.encode import Encoding, encode
@@ -50,7 +52,6 @@ from fsmsynth.stages.reduce import minimize_states
 from fsmsynth.stages.reduce.tabulation import StateMinimization
 from fsmsynth.stages.registered import delayed_machine, registered_codes
 
-UNUSED_POLICIES = ("dont-care", "safe")
 MAX_EXTRA_WIDTH = 3
 """Searched encodings take codes of up to this many bits more than the fewest (or one-hot
 width, when that is more)."""
@@ -365,6 +366,7 @@ def _search(table: StateTable, method: str, storage: StorageChoice, unused: str,
     else:
         result = anneal_search(score, table, k, seed, 400 if budget is None else budget,
                                jobs=jobs, time_limit=time_limit)
+    result = plain_codes_if_cheaper(result, score, n)
     result = replace(result, seconds=round(time.perf_counter() - started, 3),
                      scored_on=target.name)
     return Encoding(method=method, width=result.width,

@@ -12,6 +12,7 @@ from __future__ import annotations
 from collections.abc import Sequence
 from dataclasses import dataclass
 
+from fsmsynth.base.choices import LOGIC_METHODS
 from fsmsynth.base.errors import OptionError
 from fsmsynth.logic.cost import DEFAULT_WEIGHTS, CostWeights, normal_terms
 from fsmsynth.logic.cube import Cube
@@ -19,7 +20,7 @@ from fsmsynth.logic.espresso import espresso_cover
 from fsmsynth.logic.exact import exact_cover, points_of
 from fsmsynth.logic.functions import Function, LogicFunctions
 
-METHODS = ("heuristic", "exact", "auto")
+METHODS = LOGIC_METHODS
 EXACT_AUTO_LIMIT = 10
 """``logic="auto"`` runs the exact minimizer up to this many variables, Espresso beyond."""
 EXACT_MAX_VARIABLES = 16

@@ -36,10 +36,6 @@ import time
 from collections.abc import Iterable, Sequence
 from functools import lru_cache
 
-import numpy as np
-from scipy.optimize import Bounds, LinearConstraint, linprog, milp
-from scipy.sparse import csr_matrix, vstack
-
 from fsmsynth.logic.cube import bits_of
 
 QUICK_NODES = 40
@@ -282,6 +278,9 @@ def _relaxation(rows: dict[int, int], weight: Sequence[int]
     Returns ``(integral solution or None, (mask of the columns it uses, row prices))``;
     the prices are the relaxation's duals, indexed by row id.
     """
+    import numpy as np  # loaded only when an exact cover needs it (start-up time)
+    from scipy.optimize import linprog
+    from scipy.sparse import csr_matrix
     ids = sorted(rows)
     n_cols = len(weight)
     cells = [(p, c) for p, i in enumerate(ids) for c in _columns(rows[i])]
@@ -329,6 +328,9 @@ def _lexicographic_ilp(rows: list[list[int]], literals: Sequence[int],
     ``weights`` (terms first, folded) rank the greedy cover returned when time runs out.
     Returns ``(picked, proven, lower bound on the number of terms)``.
     """
+    import numpy as np  # loaded only when an exact cover needs it (start-up time)
+    from scipy.optimize import Bounds, LinearConstraint, linprog, milp
+    from scipy.sparse import csr_matrix, vstack
     deadline = time.monotonic() + max(time_limit, 0.01)
     columns = sorted({j for r in rows for j in r})
     index = {j: i for i, j in enumerate(columns)}

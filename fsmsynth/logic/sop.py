@@ -9,14 +9,16 @@ from __future__ import annotations
 import math
 from collections.abc import Iterable, Sequence
 from dataclasses import dataclass
-
-import sympy
+from typing import TYPE_CHECKING
 
 from fsmsynth.base.errors import OptionError
 from fsmsynth.logic.cover import EXACT_MAX_VARIABLES
 from fsmsynth.logic.cube import Cube
 from fsmsynth.logic.engine_lock import exclusive
 from fsmsynth.logic.exact import exact_cover, heuristic_cover, petrick_cover
+
+if TYPE_CHECKING:
+    import sympy
 
 METHODS = ("exact", "heuristic", "petrick")
 SOP_MAX_VARIABLES = 20
@@ -72,6 +74,7 @@ class SopCover:
     def to_sympy(self, names: Sequence[str] | None = None,
                  output: int = 0) -> sympy.logic.boolalg.Boolean:
         """One output as a sympy Boolean expression."""
+        import sympy  # loaded only when asked for (start-up time)
         syms = [sympy.Symbol(n) for n in (names or _default_names(self.n_inputs))]
         return sympy.Or(*[sympy.And(*[syms[i] if ch == "1" else sympy.Not(syms[i])
                                       for i, ch in enumerate(t) if ch != "-"])

@@ -9,9 +9,11 @@ from __future__ import annotations
 
 from collections.abc import Sequence
 from dataclasses import dataclass
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
-import sympy
+if TYPE_CHECKING:
+    pass
+
 
 
 @dataclass(frozen=True, slots=True)
@@ -93,6 +95,7 @@ class Expr:
 
     def to_sympy(self, names: Sequence[str]) -> Any:
         """The same function as a sympy Boolean expression over symbols named ``names``."""
+        import sympy  # loaded only when asked for (start-up time)
         if self.kind == "lit":
             s = sympy.Symbol(names[self.var])
             return s if self.positive else sympy.Not(s)

@@ -18,6 +18,7 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
+from fsmsynth.base.choices import DEFAULT_STORAGES
 from fsmsynth.base.errors import OptionError
 
 
@@ -157,6 +158,7 @@ DE = Storage(
 
 STORAGES: dict[str, Storage] = {s.name: s for s in (D, T, JK, SR, DE)}
 """Every storage kind by name."""
+assert (*sorted(STORAGES), "best") == DEFAULT_STORAGES  # the command line's list agrees
 
 
 def storage_named(name: str | Storage) -> Storage:

@@ -4,10 +4,12 @@ from __future__ import annotations
 
 from collections.abc import Mapping
 from dataclasses import dataclass
-
-import sympy
+from typing import TYPE_CHECKING
 
 from fsmsynth.logic.cube import Cube
+
+if TYPE_CHECKING:
+    import sympy
 
 
 def _term_key(term: Cube) -> tuple[tuple[int, bool], ...]:
@@ -52,6 +54,7 @@ class Equation:
 
     def to_sympy(self) -> sympy.logic.boolalg.Boolean:
         """The equation's right-hand side as a sympy Boolean expression."""
+        import sympy  # loaded only when asked for (start-up time)
         syms = [sympy.Symbol(v) for v in self.variables]
         products = []
         for key in sorted(map(_term_key, self.terms)):

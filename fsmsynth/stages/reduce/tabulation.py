@@ -9,8 +9,6 @@ from dataclasses import dataclass
 from typing import Any
 
 import numpy as np
-from scipy.sparse import csr_matrix
-from scipy.sparse.csgraph import breadth_first_order
 
 from fsmsynth.logic.cube import Cube, partition_within
 from fsmsynth.model.table import StateTable
@@ -209,10 +207,16 @@ def _tabulate(table: StateTable, rows: _RowArrays, kept: np.ndarray,
 def _reachable(rows: _RowArrays, n: int, start: int) -> np.ndarray:
     """Mask of the states reachable from ``start`` through specified transitions."""
     given = rows.next >= 0
-    graph = csr_matrix((np.ones(int(given.sum()), dtype=np.int8),
-                        (rows.present[given], rows.next[given])), shape=(n, n))
+    successors: list[set[int]] = [set() for _ in range(n)]
+    for a, b in zip(rows.present[given].tolist(), rows.next[given].tolist()):
+        successors[a].add(b)
     mask = np.zeros(n, dtype=bool)
-    mask[breadth_first_order(graph, start, directed=True, return_predecessors=False)] = True
+    mask[start] = True
+    frontier = [start]
+    while frontier:  # breadth first over the specified transitions
+        frontier = [b for a in frontier for b in successors[a] if not mask[b]]
+        for b in frontier:
+            mask[b] = True
     return mask
 
 
