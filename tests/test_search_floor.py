@@ -18,7 +18,7 @@ from strategies import state_tables
 from fsmsynth import StateTable, synthesize
 
 sys.path.insert(0, str(Path(__file__).resolve().parent.parent / "benchmarks"))
-from controllers import controller  # noqa: E402
+from controllers import controller
 
 
 def _floor(table: StateTable, storage: str) -> float:
