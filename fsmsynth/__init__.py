@@ -33,6 +33,7 @@ if TYPE_CHECKING:  # what type checkers and readers see; at run time names load 
     from fsmsynth.checks.spec_warnings import WARNINGS, SpecWarning, spec_warnings
     from fsmsynth.checks.table_check import TableReport, check_table
     from fsmsynth.checks.timing import Delays, GateDelay, TimingReport, timing
+    from fsmsynth.checks.trace import Trace, replay, write_trace_vcd
     from fsmsynth.checks.verify import verify
     from fsmsynth.flows.build_options import BuildOptions, Project, ProjectSpec
     from fsmsynth.flows.compare import Comparison, ComparisonRow, compare
@@ -59,6 +60,9 @@ if TYPE_CHECKING:  # what type checkers and readers see; at run time names load 
     from fsmsynth.version import __version__
 
 _WHERE: dict[str, tuple[str, str]] = {
+    'Trace': ('fsmsynth.checks.trace', 'Trace'),
+    'replay': ('fsmsynth.checks.trace', 'replay'),
+    'write_trace_vcd': ('fsmsynth.checks.trace', 'write_trace_vcd'),
     'EncodingError': ('fsmsynth.base.errors', 'EncodingError'),
     'FsmSynthError': ('fsmsynth.base.errors', 'FsmSynthError'),
     'InvariantError': ('fsmsynth.base.errors', 'InvariantError'),
@@ -153,7 +157,7 @@ __all__ = [
     "minimize_states", "StateMinimization", "encode", "minimize_sop", "SopCover",
     "synthesize", "Design", "verify", "simulate", "Verification", "Counterexample",
     "compare", "Comparison", "ComparisonRow", "convert_storage", "StorageConversion",
-    "timing", "TimingReport", "Delays", "GateDelay",
+    "timing", "TimingReport", "Delays", "GateDelay", "Trace", "replay", "write_trace_vcd",
     "check_invariants", "constrain_outputs", "InvariantCheck", "InvariantViolation",
     "check_table", "TableReport", "spec_warnings", "SpecWarning", "WARNINGS",
     "Target", "target_named",

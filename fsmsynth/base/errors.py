@@ -118,21 +118,26 @@ class OutputError(FsmSynthError, OSError):
 class VerificationError(FsmSynthError, RuntimeError):
     """A synthesized netlist that does not match its state table.
 
-    This means a defect in fsmsynth; the counterexample is kept on ``.result``.
+    This means a defect in fsmsynth; the counterexample is kept on ``.result``, and as a
+    cycle by cycle run of the table on ``.trace`` (a :class:`~fsmsynth.checks.trace.Trace`,
+    or ``None``).
     """
 
-    def __init__(self, message: str, result: object) -> None:
+    def __init__(self, message: str, result: object, trace: object = None) -> None:
         super().__init__(message)
         self.result = result
+        self.trace = trace
 
 
 class InvariantError(FsmSynthError, ValueError):
     """An invariant of the table that the table or the netlist breaks.
 
     The outcome, with the shortest input sequence from reset that breaks it, is on
-    ``.result`` (an :class:`~fsmsynth.checks.invariants.InvariantCheck`).
+    ``.result`` (an :class:`~fsmsynth.checks.invariants.InvariantCheck`), and as a cycle by
+    cycle run of the table on ``.trace`` (a :class:`~fsmsynth.checks.trace.Trace`).
     """
 
-    def __init__(self, message: str, result: object) -> None:
+    def __init__(self, message: str, result: object, trace: object = None) -> None:
         super().__init__(message)
         self.result = result
+        self.trace = trace

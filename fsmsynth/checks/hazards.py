@@ -103,7 +103,8 @@ class GlitchReport:
         """Outputs with no glitch found."""
         return tuple(o for o in self.outputs if not self.of(o))
 
-    def lines(self) -> list[str]:
+    def lines(self, *, cases: int = 6) -> list[str]:
+        """One verdict per output, each followed by up to ``cases`` of its glitches."""
         out = []
         for o in self.outputs:
             found = self.of(o)
@@ -117,9 +118,9 @@ class GlitchReport:
                 kinds = sorted({g.kind for g in found})
                 out.append(f"{o}: can glitch ({', '.join(kinds)}; {len(found)} "
                            f"case{'s' if len(found) > 1 else ''})")
-                out += [f"  {g.describe()}" for g in found[:6]]
-                if len(found) > 6:
-                    out.append(f"  ... and {len(found) - 6} more (see --json)")
+                out += [f"  {g.describe()}" for g in found[:cases]]
+                if len(found) > cases and cases:
+                    out.append(f"  ... and {len(found) - cases} more (see --json)")
         out += [f"not searched for function hazards: {u}" for u in self.unchecked]
         return out
 

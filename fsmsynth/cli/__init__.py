@@ -36,6 +36,10 @@ def main(argv: Sequence[str] | None = None) -> int:
         return int(command(args))
     except FsmSynthError as exc:
         print(f"fsmsynth: error: {exc}", file=sys.stderr)
+        trace = getattr(exc, "trace", None)
+        if trace is not None:  # the failing run, cycle by cycle
+            print("".join(f"  {line}\n" for line in trace.table_text(note=False).splitlines()),
+                  end="", file=sys.stderr)
         return 1 if isinstance(exc, VerificationError) else 2
     except KeyboardInterrupt:
         print("fsmsynth: interrupted", file=sys.stderr)

@@ -190,6 +190,9 @@ def parser() -> argparse.ArgumentParser:
     build.add_argument("--testbench", action="store_true",
                        help="also write <name>_tb.v (and <name>_tb.vhd with --hdl vhdl), a "
                             "self-checking testbench from the table")
+    build.add_argument("--bench-vcd", action="store_true",
+                       help="with --testbench: the Verilog bench dumps <name>.vcd (every port "
+                            "and the design's state_name) when it runs")
     build.add_argument("--cocotb", action="store_true",
                        help="also write <name>_cocotb.py: the same checks and a random run "
                             "against the table, driven from Python by cocotb (run it with "
@@ -199,6 +202,9 @@ def parser() -> argparse.ArgumentParser:
                             "(structural netlists), verilog-rtl, vhdl-rtl (readable "
                             "register-transfer-level machines); default verilog")
     build.add_argument("--json", action="store_true", help="print a JSON report instead of text")
+    build.add_argument("-v", "--verbose", action="store_true",
+                       help="print every equation and glitch even when that is more than a "
+                            "screen (a big machine is summarised by default)")
     build.add_argument("-q", "--quiet", action="store_true",
                        help="leave out the caution block (for build logs; the cautions still "
                             "apply and stay in the Verilog header)")
@@ -277,6 +283,9 @@ def parser() -> argparse.ArgumentParser:
     check.add_argument("spec", help="state table: .toml spec or .csv table")
     table_settings(check)
     warning_options(check)
+    check.add_argument("--vcd", metavar="FILE.vcd",
+                       help="where an invariant breaks, write the run that breaks it as a "
+                            "value change dump (IEEE 1364 VCD)")
     check.add_argument("--json", action="store_true", help="print a JSON report instead of text")
     many = sub.add_parser("build-all", help="build every spec of a project file, in parallel, "
                           "rebuilding only what changed")

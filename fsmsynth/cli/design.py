@@ -81,7 +81,8 @@ def options_of(args: argparse.Namespace) -> BuildOptions:
     write): ``build`` and ``timing`` make the same design from the same options."""
     storage = storage_arg(args.storage)
     encoding = encoding_arg(args.encoding)
-    files = ({"hdl": tuple(args.hdl), "testbench": args.testbench, "cocotb": args.cocotb}
+    files = ({"hdl": tuple(args.hdl), "testbench": args.testbench, "cocotb": args.cocotb,
+              "bench_vcd": args.bench_vcd}
              if args.command == "build" else {})
     return BuildOptions(
         storage=tuple(storage) if isinstance(storage, list) else storage,
@@ -117,67 +118,115 @@ def build_command(args: argparse.Namespace) -> int:
         report["files"] = written
         print(json.dumps(report, indent=2))
         return 0
-    encoded = design.encoded_table
+    lines = report_lines(design, args, written, full=True)
+    if not args.verbose and len(lines) > SCREEN:  # a big machine: a summary that fits
+        lines = report_lines(design, args, written, full=False)
+    print("\n".join(lines))
+    if not args.quiet:
+        print()
+        print(CAUTION)
+    return 0
+
+
+SCREEN = 60
+"""Lines ``build`` prints before it summarises (``--verbose`` prints everything)."""
+
+
+def report_lines(design: Design, args: argparse.Namespace, written: dict[str, bool], *,
+                 full: bool) -> list[str]:
+    """What ``build`` prints: everything, or with ``full`` false a summary of the equations
+    and the glitches (counts, the longest equations, one verdict per output)."""
+    table, encoded = design.table, design.encoded_table
     codes = (", ".join(f"{s}={design.encoding.code_string(s)}" for s in encoded.states)
              if design.encoding.width else "one state, no code bits")
+    if not full and len(encoded.states) > 16:
+        codes = f"{design.encoding.width} bits; --json lists the codes"
+    per_bit = (", ".join(f"Q{b} {s.name.upper()}" for b, s in enumerate(design.storages))
+               if full else ", ".join(f"{n} {k.upper()}" for k, n in _kind_counts(
+                   [s.name for s in design.storages]).items()))
     kinds = ("no" if design.storage == "none" else
-             design.storage.upper() if design.storage != "mixed" else
-             "mixed (" + ", ".join(f"Q{b} {s.name.upper()}" for b, s in
-                                   enumerate(design.storages)) + ")")
+             design.storage.upper() if design.storage != "mixed" else f"mixed ({per_bit})")
     count = len(encoded.states)
-    print(f"{table.name}: {count} state{'s' if count != 1 else ''}, {kinds} flip-flops, "
-          f"{design.encoding.method} encoding ({codes})")
+    out = [f"{table.name}: {count} state{'s' if count != 1 else ''}, {kinds} flip-flops, "
+           f"{design.encoding.method} encoding ({codes})"]
     if design.assignment is not None:
         a = design.assignment
         ending = (", interrupted: best so far" if a.interrupted else
                   ", time limit reached: best so far" if a.timed_out else
                   ", proven best" if a.proven else "")
-        print(f"state assignment ({design.encoding.method}): cost {a.cost:g} after "
-              f"{a.evaluated} assignments{ending}, scored on {a.scored_on} in {a.seconds:g} s")
+        out.append(f"state assignment ({design.encoding.method}): cost {a.cost:g} after "
+                   f"{a.evaluated} assignments{ending}, scored on {a.scored_on} in "
+                   f"{a.seconds:g} s")
     if design.minimization is not None:
-        for line in minimization_lines(design.minimization, len(table.states)):
-            print(line)
-    print()
-    print("Equations:")
-    for eq in design.equations.values():
-        print(f"  {eq}")
+        out += minimization_lines(design.minimization, len(table.states))
+    out += ["", "Equations:"] + _equation_lines(design, full)
     c = design.two_level_cost or design.cost  # the two-level figures, on any target
-    print()
-    print("Cost (two-level):" if design.mapping is not None else "Cost:")
-    print(f"  product terms {c.product_terms}, literals {c.literals}")
-    print("  gates " + ", ".join(f"{k.upper()} {n}" for k, n in c.gates.items())
-          + f"; gate inputs {c.gate_inputs}")
-    print("  flip-flops " + (", ".join(f"{k.upper()} {n}" for k, n in c.flip_flops.items())
-                             or "none"))
-    print(f"  total {c.total:g} (gate inputs + flip-flop weights)")
     proof = (", proven minimal sums of products" if design.cover.proven
              else "" if design.cover.method == "heuristic" else ", time limit: not proven minimal")
-    print(f"  two-level minimization: {design.cover.method}{proof}")
+    out += ["", "Cost (two-level):" if design.mapping is not None else "Cost:",
+            f"  product terms {c.product_terms}, literals {c.literals}",
+            "  gates " + ", ".join(f"{k.upper()} {n}" for k, n in c.gates.items())
+            + f"; gate inputs {c.gate_inputs}",
+            "  flip-flops " + (", ".join(f"{k.upper()} {n}" for k, n in c.flip_flops.items())
+                               or "none"),
+            f"  total {c.total:g} (gate inputs + flip-flop weights)",
+            f"  two-level minimization: {design.cover.method}{proof}"]
     if design.mapping is not None:
-        print()
-        for line in target_lines(design):
-            print(line)
-    print()
+        out += [""] + target_lines(design)
+    out.append("")
     if args.unit_distance:
         steps = design.multi_bit_steps
-        print("transitions more than one bit apart: " + (", ".join(
-            f"{a} -> {b} ({n} bits)" for a, b, n in steps) if steps else "none"))
-        print()
-    print("Glitches (two-level outputs"
-          + (", hazard-free covers" if design.hazard_free else "") + "):")
-    for line in design.glitches.lines():
-        print(f"  {line}")
-    print()
+        out += ["transitions more than one bit apart: " + (", ".join(
+            f"{a} -> {b} ({n} bits)" for a, b, n in steps) if steps else "none"), ""]
+    out.append("Glitches (two-level outputs"
+               + (", hazard-free covers" if design.hazard_free else "") + "):")
+    out += _glitch_lines(design, full)
+    out.append("")
     assert design.verification is not None
-    print(design.verification.summary())
+    out.append(design.verification.summary())
     if design.invariants is not None and design.invariants.invariants:
-        print(design.invariants.summary())
-    for path, changed in written.items():
-        print(f"{'wrote' if changed else 'unchanged'} {path}")
-    if not args.quiet:
-        print()
-        print(CAUTION)
-    return 0
+        out.append(design.invariants.summary())
+    out += [f"{'wrote' if changed else 'unchanged'} {path}" for path, changed in written.items()]
+    if not full:
+        out.append("(a summary of a big machine: --verbose prints every equation and glitch)")
+    return out
+
+
+def _kind_counts(kinds: list[str]) -> dict[str, int]:
+    counts: dict[str, int] = {}
+    for kind in kinds:
+        counts[kind] = counts.get(kind, 0) + 1
+    return counts
+
+
+def _equation_lines(design: Design, full: bool) -> list[str]:
+    equations = list(design.equations.values())
+    if full:
+        return [f"  {eq}" for eq in equations]
+    longest = sorted(equations, key=lambda eq: (-len(eq.terms), eq.signal))[:3]
+    lines = [f"  {len(equations)} signals; the longest: "
+             + ", ".join(f"{eq.signal} ({len(eq.terms)} products)" for eq in longest)]
+    shown = [eq for eq in equations if len(str(eq)) <= 96][:8]
+    lines += [f"  {eq}" for eq in shown]
+    if len(shown) < len(equations):
+        lines.append(f"  ... {len(equations) - len(shown)} more (--verbose prints them, "
+                     "--json gives them)")
+    return lines
+
+
+def _glitch_lines(design: Design, full: bool) -> list[str]:
+    report = design.glitches
+    if full:
+        return [f"  {line}" for line in report.lines()]
+    verdicts = report.lines(cases=0)
+    if len(verdicts) <= 12:
+        return [f"  {line}" for line in verdicts]
+    glitching = sorted({g.output for g in report.glitches})
+    kinds = _kind_counts([g.kind for g in report.glitches])
+    return [f"  {len(glitching)} of {len(report.outputs)} outputs can glitch ("
+            + ", ".join(f"{k} {n}" for k, n in sorted(kinds.items())) + " cases)"
+            + (": " + ", ".join(glitching[:12]) + (", ..." if len(glitching) > 12 else "")
+               if glitching else "")]
 
 
 def timing_command(args: argparse.Namespace) -> int:
@@ -261,6 +310,8 @@ def compare_command(args: argparse.Namespace) -> int:
         print(buffer.getvalue(), end="")
         return 0
     texts = [[str(x if not isinstance(x, float) else f"{x:g}") for x in r] for r in records]
+    for text in texts:  # repeated kinds as counts: "6 jk" for a kind per bit of six bits
+        text[3] = ", ".join(f"{n} {k}" for k, n in _kind_counts(text[3].split()).items())
     widths = [max(len(h), *(len(t[i]) for t in texts)) for i, h in enumerate(header)]
     on = "" if result.target == "two-level" else f" on {result.target}"
     print(f"{result.machine}: {len(records)} designs{on}, cheapest first")

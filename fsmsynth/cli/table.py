@@ -13,6 +13,7 @@ from fsmsynth.base.errors import OptionError
 from fsmsynth.checks.invariants import check_invariants, constrain_outputs, kept_by_reduction
 from fsmsynth.checks.spec_warnings import spec_warnings, warning_lines
 from fsmsynth.checks.table_check import check_table
+from fsmsynth.checks.trace import violation_trace, write_trace_vcd
 from fsmsynth.cli.arguments import encoding_arg, read_table_arg, storage_arg
 from fsmsynth.cli.printing import accepted_arg, minimization_lines
 from fsmsynth.flows.files import write_bytes_if_changed, write_if_changed
@@ -116,6 +117,9 @@ def check_command(args: argparse.Namespace) -> int:
     report = check_table(table, accepted_arg(args))
     kept = check_invariants(table)
     status = 0 if kept and not (args.strict and report.warnings) else 2
+    trace = violation_trace(table, kept)
+    if args.vcd and trace is not None:  # the run that breaks it, for a waveform viewer
+        write_if_changed(args.vcd, write_trace_vcd(trace, table.name))
     if args.json:
         broken = kept.violation
         print(json.dumps({
@@ -129,6 +133,7 @@ def check_command(args: argparse.Namespace) -> int:
                                "invariant": broken.invariant, "inputs": list(broken.inputs),
                                "states": list(broken.states), "outputs": broken.outputs}},
             "warnings": [w.as_dict() for w in report.warnings],
+            "trace": trace.rows() if trace is not None else None,
         }, indent=2))
         return status
     print(f"{args.spec}: valid {table.kind} table '{table.name}': {len(table.states)} states, "
@@ -144,6 +149,11 @@ def check_command(args: argparse.Namespace) -> int:
               "and --strict refuses warnings")
     if table.invariants:
         print(f"  {kept.summary()}")
+    if trace is not None:
+        print("".join(f"    {line}\n" for line in trace.table_text(note=False).splitlines()),
+              end="")
+        if args.vcd:
+            print(f"  wrote {args.vcd} (the same run as a value change dump)")
     return status
 
 

@@ -121,6 +121,7 @@ class BuildOptions:
     enable_port: str | None = None
     hdl: tuple[str, ...] = ("verilog",)
     testbench: bool = False
+    bench_vcd: bool = False
     cocotb: bool = False
 
     def __post_init__(self) -> None:

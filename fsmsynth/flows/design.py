@@ -33,6 +33,7 @@ from fsmsynth.stages.registered import delayed_machine
 from fsmsynth.writers.json_netlist import write_json_netlist
 from fsmsynth.writers.rtl_machine import RtlMachine, rtl_machine
 from fsmsynth.writers.rtl_verilog import assertion_lines as verilog_assertions
+from fsmsynth.writers.rtl_verilog import state_name_lines as verilog_state_names
 from fsmsynth.writers.rtl_verilog import write_rtl_verilog
 from fsmsynth.writers.rtl_vhdl import assertion_lines as vhdl_assertions
 from fsmsynth.writers.rtl_vhdl import write_rtl_vhdl
@@ -136,8 +137,10 @@ class Design:
     @cached_property
     def verilog(self) -> str:
         """Structural Verilog of the netlist."""
+        bits = self._state_bits("verilog")
+        names = verilog_state_names(self.rtl, *bits) if bits[0] != "{}" else []
         return write_verilog(self.netlist, header=self.header(),
-                             checks=verilog_assertions(self.rtl, *self._state_bits("verilog")))
+                             checks=names + verilog_assertions(self.rtl, *bits))
 
     @cached_property
     def vhdl(self) -> str:

@@ -20,6 +20,7 @@ from fsmsynth.base.names import port_bits, ports_of
 from fsmsynth.checks.hazards import hazard_free
 from fsmsynth.checks.invariants import InvariantCheck, check_invariants, constrain_outputs
 from fsmsynth.checks.spec_warnings import spec_warnings, strict_message
+from fsmsynth.checks.trace import replay, violation_trace
 from fsmsynth.checks.verify import verify
 from fsmsynth.flows.design import Design
 from fsmsynth.logic.cost import DEFAULT_WEIGHTS, CostWeights, cost_of, logic_shape
@@ -239,7 +240,8 @@ def _prove_on_table(table: StateTable) -> None:
     if table.invariants:
         on_table = check_invariants(table)
         if not on_table:
-            raise InvariantError(f"{table.name}: {on_table.summary()}", on_table)
+            raise InvariantError(f"{table.name}: {on_table.summary()}", on_table,
+                                 violation_trace(table, on_table))
 
 
 def _map_goal(map_for: str) -> str:
@@ -497,11 +499,15 @@ def _proved(design: Design) -> Design:
     safe = design.encoding.unused_cubes() if design.unused == "safe" else ()
     proof = verify(design.netlist, design.reference, safe_unused=safe)
     if not proof:
-        raise VerificationError(f"{design.table.name}: {proof.summary()}", proof)
+        cex = proof.counterexample
+        trace = (replay(design.reference, cex.inputs, cex.describe())
+                 if cex is not None and cex.start_code is None else None)
+        raise VerificationError(f"{design.table.name}: {proof.summary()}", proof, trace)
     if not design.table.invariants:  # nothing to prove: an empty result, never None
         return replace(design, verification=proof,
                        invariants=InvariantCheck(invariants=(), walked=0, on="netlist"))
     kept = check_invariants(design.table, design.netlist)
     if not kept:
-        raise InvariantError(f"{design.table.name}: {kept.summary()}", kept)
+        raise InvariantError(f"{design.table.name}: {kept.summary()}", kept,
+                             violation_trace(design.table, kept))
     return replace(design, verification=proof, invariants=kept)

@@ -68,7 +68,9 @@ def design_files(design: Design, options: BuildOptions) -> dict[str, str]:
         files[f"{name}_rtl.vhd"] = design.rtl_vhdl
     files[f"{name}.json"] = design.json
     if options.testbench and {"verilog", "verilog-rtl"} & set(options.hdl):
-        files[f"{name}_tb.v"] = write_testbench(design.reference, clocking=design.clocking)
+        files[f"{name}_tb.v"] = write_testbench(
+            design.reference, clocking=design.clocking,
+            vcd=f"{name}.vcd" if options.bench_vcd else None)
     if options.testbench and {"vhdl", "vhdl-rtl"} & set(options.hdl):
         files[f"{name}_tb.vhd"] = write_vhdl_testbench(design.reference,
                                                        clocking=design.clocking)

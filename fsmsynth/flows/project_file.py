@@ -52,7 +52,8 @@ _KINDS: dict[str, tuple[type, ...]] = {
     "outputs": (str,), "minimize": (bool,), "clock_edge": (str,), "target": (str,),
     "map_for": (str,), "weights": (str,), "seed": (int,), "budget": (int,), "width": (int,),
     "unit_distance": (bool,), "jobs": (int,), "time_limit": (int, float), "force": (bool,),
-    "hdl": (str, list), "testbench": (bool,), "cocotb": (bool,), "strict": (bool,),
+    "hdl": (str, list), "testbench": (bool,), "bench_vcd": (bool,), "cocotb": (bool,),
+    "strict": (bool,),
     "accept_warnings": (list,), "clock_port": (str,), "reset_port": (str,),
     "reset_style": (str,), "reset_active": (str,), "enable_port": (str,),
 }

@@ -192,6 +192,22 @@ def assertion_lines(m: RtlMachine, state: str = "state",
     return lines + ["/* verilator lint_on SYNCASYNCNET */", "`endif"]
 
 
+def state_name_lines(m: RtlMachine, state: str = "state",
+                     code: Callable[[str], str] | None = None) -> list[str]:
+    """``state_name``: the present state's name as text, for waveform viewers (a value change
+    dump shows it as a string), inside ``ifndef SYNTHESIS``; ``state`` and ``code`` as for
+    :func:`assertion_lines`."""
+    named = code or m.constant
+    size = 8 * max(len(s.name) for s in m.states)
+    cases = [f"        {named(s.name)}: state_name = \"{s.name}\";" for s in m.states]
+    return ["", "`ifndef SYNTHESIS",
+            "/* verilator lint_off UNUSED */  // read by waveform viewers, not by logic",
+            "// The present state's name, for waveform viewers (simulation only).",
+            f"reg [{size - 1}:0] state_name;", "always @* begin",
+            f"    case ({state})", *cases, "        default: state_name = \"?\";",
+            "    endcase", "end", "/* verilator lint_on UNUSED */", "`endif"]
+
+
 def held_conditions(inv: RtlInvariant, signals: tuple[str, ...], other_state: Callable[[str], str],
           written: Callable[[tuple[Cube, ...], tuple[str, ...]], str], either: str) -> list[str]:
     """An invariant's conditions: one, when every state has the same; else one per state
@@ -227,6 +243,7 @@ def write_rtl_verilog(m: RtlMachine, *, header: str = "") -> str:
     if not moore_words:
         lines += [f"        {x}" for x in _next_words(m)]
     lines += ["    end"]
+    lines += [f"    {x}" if x else "" for x in state_name_lines(m)]
     lines += [f"    {x}" if x else "" for x in assertion_lines(m)]
     lines += ["endmodule", "/* verilator lint_on DECLFILENAME */", "`default_nettype wire"]
     return "\n".join(lines) + "\n"

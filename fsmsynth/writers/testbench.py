@@ -117,7 +117,7 @@ def bench_body(table: StateTable, syntax: BenchSyntax, *, hold: bool = False) ->
 
 
 def write_testbench(table: StateTable, *, period: int = 10,
-                    clocking: Clocking = DEFAULT_CLOCKING) -> str:
+                    clocking: Clocking = DEFAULT_CLOCKING, vcd: str | None = None) -> str:
     """Verilog testbench text for a module with the table's name and ports.
 
     Parameters
@@ -130,6 +130,10 @@ def write_testbench(table: StateTable, *, period: int = 10,
         The design's clock, reset and enable ports and conventions: the bench resets it
         the way they say (a synchronous reset with a clock edge) and, with an enable,
         checks that a clock edge with the enable at 0 holds the state.
+    vcd:
+        A file name: the bench dumps every signal of the bench and the design into it as a
+        value change dump (IEEE 1364-2005, section 18), the design's ``state_name`` (its
+        present state's name, as text) among them.
     """
     half = max(2, period // 2)
     n_in = len(table.inputs)
@@ -158,6 +162,8 @@ def write_testbench(table: StateTable, *, period: int = 10,
         f"    {table.name} dut ({', '.join(f'.{p}({p})' for p in ports)});",
         "",
         "    initial begin",
+        *([f"        $dumpfile(\"{vcd}\");", f"        $dumpvars(0, {table.name}_tb);"]
+          if vcd else []),
     ]
 
     def check(test: int, cycle: int, name: str, want: str) -> list[str]:

@@ -89,8 +89,8 @@ def transitions(table: StateTable) -> list[tuple[str, str]]:
 
 class _Progress:
     """A one-line progress bar on a terminal's stderr, with the time left estimated from the
-    rate so far (and the time limit, when it comes first); silent when stderr is not a
-    terminal."""
+    rate so far (and the time limit, when it comes first); when stderr is not a terminal (a
+    build log), one line every :data:`LOG_EVERY` seconds instead."""
 
     def __init__(self, label: str, total: int | None, deadline: float | None = None) -> None:
         self.label, self.total, self.deadline = label, total, deadline
@@ -99,7 +99,7 @@ class _Progress:
 
     def update(self, done: int, best: float) -> None:
         now = time.monotonic()
-        if not self.live or now - self.last < 0.2:
+        if now - self.last < (0.2 if self.live else LOG_EVERY):
             return
         self.last = now
         left = None
@@ -108,7 +108,11 @@ class _Progress:
         if self.deadline is not None:
             left = min(left if left is not None else math.inf, self.deadline - now)
         eta = f", about {left:.0f} s left" if left is not None and math.isfinite(left) else ""
-        if self.total:
+        if not self.live:
+            of = f"/{self.total}" if self.total else " steps"
+            sys.stderr.write(f"{self.label}: {done}{of}, best {best:g}{eta}, "
+                             f"{now - self.started:.0f} s so far\n")
+        elif self.total:
             filled = int(30 * done / self.total)
             bar = "#" * filled + "." * (30 - filled)
             sys.stderr.write(f"\r{self.label} [{bar}] {done}/{self.total} best {best:g}{eta}")
@@ -120,6 +124,10 @@ class _Progress:
         if self.live:
             sys.stderr.write("\r" + " " * 79 + "\r")
             sys.stderr.flush()
+
+
+LOG_EVERY = 5.0
+"""Seconds between progress lines of a search whose stderr is not a terminal."""
 
 
 def min_width(n_states: int) -> int:

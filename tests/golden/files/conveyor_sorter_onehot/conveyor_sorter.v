@@ -33,6 +33,20 @@ module conveyor_sorter (
     fs_d_ff #(.RESET_VALUE(1'b0)) fs_ff1 (.clk(clk), .rst(rst), .d(fs_d1_p1), .q(fs_q1));
     assign flap = fs_nq0;
     assign count = fs_count_p1;
+
+    `ifndef SYNTHESIS
+    /* verilator lint_off UNUSED */  // read by waveform viewers, not by logic
+    // The present state's name, for waveform viewers (simulation only).
+    reg [63:0] state_name;
+    always @* begin
+        case ({fs_q1, fs_q0})
+            2'b01: state_name = "wait";
+            2'b10: state_name = "scan_bad";
+            default: state_name = "?";
+        endcase
+    end
+    /* verilator lint_on UNUSED */
+    `endif
 endmodule
 
 // D flip-flop: Q+ = D; rising edge, asynchronous active-high reset (clear, or set when RESET_VALUE is 1).

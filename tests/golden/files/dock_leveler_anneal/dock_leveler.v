@@ -82,6 +82,23 @@ module dock_leveler (
     fs_jk_ff #(.RESET_VALUE(1'b1)) fs_ff0 (.clk(clk), .rst(rst), .j(fs_j0), .k(fs_k0), .q(fs_q0));
     fs_jk_ff #(.RESET_VALUE(1'b0)) fs_ff1 (.clk(clk), .rst(rst), .j(fs_j0_p1), .k(fs_k1), .q(fs_q1));
     fs_jk_ff #(.RESET_VALUE(1'b0)) fs_ff2 (.clk(clk), .rst(rst), .j(fs_k1), .k(fs_k2), .q(fs_q2));
+
+    `ifndef SYNTHESIS
+    /* verilator lint_off UNUSED */  // read by waveform viewers, not by logic
+    // The present state's name, for waveform viewers (simulation only).
+    reg [63:0] state_name;
+    always @* begin
+        case ({fs_q2, fs_q1, fs_q0})
+            3'b001: state_name = "stowed";
+            3'b000: state_name = "rising";
+            3'b011: state_name = "extended";
+            3'b101: state_name = "lowering";
+            3'b100: state_name = "hold";
+            default: state_name = "?";
+        endcase
+    end
+    /* verilator lint_on UNUSED */
+    `endif
 endmodule
 
 // JK flip-flop: Q+ = J Q' + K' Q; rising edge, asynchronous active-high reset (clear, or set when RESET_VALUE is 1).

@@ -116,6 +116,23 @@ module glass_kiln (
     fs_d_ff #(.RESET_VALUE(1'b0)) fs_ff0 (.clk(clk), .rst(rst), .d(fs_d0), .q(fs_q0));
     fs_d_ff #(.RESET_VALUE(1'b0)) fs_ff1 (.clk(clk), .rst(rst), .d(fs_d1), .q(fs_q1));
     fs_d_ff #(.RESET_VALUE(1'b0)) fs_ff2 (.clk(clk), .rst(rst), .d(fs_d2), .q(fs_q2));
+
+    `ifndef SYNTHESIS
+    /* verilator lint_off UNUSED */  // read by waveform viewers, not by logic
+    // The present state's name, for waveform viewers (simulation only).
+    reg [55:0] state_name;
+    always @* begin
+        case ({fs_q2, fs_q1, fs_q0})
+            3'b000: state_name = "ready";
+            3'b001: state_name = "heating";
+            3'b010: state_name = "soaking";
+            3'b011: state_name = "cooling";
+            3'b100: state_name = "alarm";
+            default: state_name = "?";
+        endcase
+    end
+    /* verilator lint_on UNUSED */
+    `endif
 endmodule
 
 // D flip-flop: Q+ = D; rising edge, asynchronous active-high reset (clear, or set when RESET_VALUE is 1).

@@ -126,6 +126,23 @@ module glass_kiln (
     assign fan = fs_m173;
     assign lamp[1] = fs_m183;
     assign lamp[0] = fs_m210;
+
+    `ifndef SYNTHESIS
+    /* verilator lint_off UNUSED */  // read by waveform viewers, not by logic
+    // The present state's name, for waveform viewers (simulation only).
+    reg [55:0] state_name;
+    always @* begin
+        case ({fs_q2, fs_q1, fs_q0})
+            3'b000: state_name = "ready";
+            3'b001: state_name = "heating";
+            3'b010: state_name = "soaking";
+            3'b011: state_name = "cooling";
+            3'b100: state_name = "alarm";
+            default: state_name = "?";
+        endcase
+    end
+    /* verilator lint_on UNUSED */
+    `endif
 endmodule
 
 // D flip-flop: Q+ = D; rising edge, asynchronous active-high reset (clear, or set when RESET_VALUE is 1).

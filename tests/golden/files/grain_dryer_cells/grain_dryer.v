@@ -129,6 +129,23 @@ module grain_dryer (
     assign alarm = fs_m84;
 
     `ifndef SYNTHESIS
+    /* verilator lint_off UNUSED */  // read by waveform viewers, not by logic
+    // The present state's name, for waveform viewers (simulation only).
+    reg [55:0] state_name;
+    always @* begin
+        case ({fs_q2, fs_q1, fs_q0})
+            3'b000: state_name = "idle";
+            3'b001: state_name = "purge";
+            3'b010: state_name = "drying";
+            3'b011: state_name = "cooling";
+            3'b100: state_name = "lockout";
+            default: state_name = "?";
+        endcase
+    end
+    /* verilator lint_on UNUSED */
+    `endif
+
+    `ifndef SYNTHESIS
     /* verilator lint_off SYNCASYNCNET */  // rst: asynchronous in the registers, a plain condition here
     // Invariants of the spec, checked at every clock edge out of reset (left out of synthesis).
     // invariant 1: ~(burner & ~fan)

@@ -123,6 +123,23 @@ module grain_dryer (
     end
 
     `ifndef SYNTHESIS
+    /* verilator lint_off UNUSED */  // read by waveform viewers, not by logic
+    // The present state's name, for waveform viewers (simulation only).
+    reg [55:0] state_name;
+    always @* begin
+        case (state)
+            S_IDLE: state_name = "idle";
+            S_PURGE: state_name = "purge";
+            S_DRYING: state_name = "drying";
+            S_COOLING: state_name = "cooling";
+            S_LOCKOUT: state_name = "lockout";
+            default: state_name = "?";
+        endcase
+    end
+    /* verilator lint_on UNUSED */
+    `endif
+
+    `ifndef SYNTHESIS
     /* verilator lint_off SYNCASYNCNET */  // rst: asynchronous in the registers, a plain condition here
     // Invariants of the spec, checked at every clock edge out of reset (left out of synthesis).
     // invariant 1: ~(burner & ~fan)

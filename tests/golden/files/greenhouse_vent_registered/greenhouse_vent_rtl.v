@@ -70,6 +70,22 @@ module greenhouse_vent (
             default: ;
         endcase
     end
+
+    `ifndef SYNTHESIS
+    /* verilator lint_off UNUSED */  // read by waveform viewers, not by logic
+    // The present state's name, for waveform viewers (simulation only).
+    reg [55:0] state_name;
+    always @* begin
+        case (state)
+            S_SHUT: state_name = "shut";
+            S_OPENING: state_name = "opening";
+            S_VENTED: state_name = "vented";
+            S_CLOSING: state_name = "closing";
+            default: state_name = "?";
+        endcase
+    end
+    /* verilator lint_on UNUSED */
+    `endif
 endmodule
 /* verilator lint_on DECLFILENAME */
 `default_nettype wire

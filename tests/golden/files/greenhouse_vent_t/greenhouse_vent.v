@@ -48,6 +48,22 @@ module greenhouse_vent (
     fs_t_ff #(.RESET_VALUE(1'b0)) fs_ff1 (.clk(clk), .rst(rst), .t(fs_t1), .q(fs_q1));
     assign motor_open = fs_motor_open_p1;
     assign motor_close = fs_motor_close_p1;
+
+    `ifndef SYNTHESIS
+    /* verilator lint_off UNUSED */  // read by waveform viewers, not by logic
+    // The present state's name, for waveform viewers (simulation only).
+    reg [55:0] state_name;
+    always @* begin
+        case ({fs_q1, fs_q0})
+            2'b00: state_name = "shut";
+            2'b01: state_name = "opening";
+            2'b11: state_name = "vented";
+            2'b10: state_name = "closing";
+            default: state_name = "?";
+        endcase
+    end
+    /* verilator lint_on UNUSED */
+    `endif
 endmodule
 
 // T flip-flop: Q+ = T Q' + T' Q; rising edge, asynchronous active-high reset (clear, or set when RESET_VALUE is 1).

@@ -46,6 +46,22 @@ module parcel_locker (
     or   fs_g_buzzer (buzzer, fs_buzzer_p1, fs_j0_p2);
     fs_jk_ff #(.RESET_VALUE(1'b0)) fs_ff0 (.clk(clk), .rst(rst), .j(fs_j0), .k(fs_k0), .q(fs_q0));
     fs_jk_ff #(.RESET_VALUE(1'b0)) fs_ff1 (.clk(clk), .rst(rst), .j(fs_k0_p1), .k(door_closed), .q(fs_q1));
+
+    `ifndef SYNTHESIS
+    /* verilator lint_off UNUSED */  // read by waveform viewers, not by logic
+    // The present state's name, for waveform viewers (simulation only).
+    reg [63:0] state_name;
+    always @* begin
+        case ({fs_q1, fs_q0})
+            2'b00: state_name = "locked";
+            2'b01: state_name = "unlocked";
+            2'b10: state_name = "open";
+            2'b11: state_name = "warn";
+            default: state_name = "?";
+        endcase
+    end
+    /* verilator lint_on UNUSED */
+    `endif
 endmodule
 
 // JK flip-flop: Q+ = J Q' + K' Q; rising edge, asynchronous active-high reset (clear, or set when RESET_VALUE is 1).

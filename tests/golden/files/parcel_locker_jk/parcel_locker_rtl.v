@@ -73,6 +73,22 @@ module parcel_locker (
             default: state_next = state;  // every code names a state
         endcase
     end
+
+    `ifndef SYNTHESIS
+    /* verilator lint_off UNUSED */  // read by waveform viewers, not by logic
+    // The present state's name, for waveform viewers (simulation only).
+    reg [63:0] state_name;
+    always @* begin
+        case (state)
+            S_LOCKED: state_name = "locked";
+            S_UNLOCKED: state_name = "unlocked";
+            S_OPEN: state_name = "open";
+            S_WARN: state_name = "warn";
+            default: state_name = "?";
+        endcase
+    end
+    /* verilator lint_on UNUSED */
+    `endif
 endmodule
 /* verilator lint_on DECLFILENAME */
 `default_nettype wire

@@ -77,6 +77,21 @@ module rail_crossing (
     fs_d_ff #(.RESET_VALUE(1'b0)) fs_ff3 (.clk(clk), .rst(rst), .d(fs_m19), .q(fs_q3));
     assign lights = fs_q2;
     assign lower = fs_q3;
+
+    `ifndef SYNTHESIS
+    /* verilator lint_off UNUSED */  // read by waveform viewers, not by logic
+    // The present state's name, for waveform viewers (simulation only).
+    reg [55:0] state_name;
+    always @* begin
+        case ({fs_q1, fs_q0})
+            2'b00: state_name = "clear";
+            2'b01: state_name = "warning";
+            2'b10: state_name = "closed";
+            default: state_name = "?";
+        endcase
+    end
+    /* verilator lint_on UNUSED */
+    `endif
 endmodule
 
 // D flip-flop: Q+ = D; rising edge, asynchronous active-high reset (clear, or set when RESET_VALUE is 1).
