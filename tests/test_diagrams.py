@@ -121,3 +121,28 @@ def test_graphviz_lays_out_every_node_and_edge(spec: str, tmp_path: Path) -> Non
     assert main(["diagram", str(EXAMPLES / spec), "-o", str(tmp_path / "d.svg")]) == 0
     svg = (tmp_path / "d.svg").read_text()
     assert "<svg" in svg and all(f">{s}<" in svg for s in table.states)
+
+
+@pytest.mark.parametrize("target", ["two-level", "lut4", "libraries/cells.toml"])
+def test_netlist_pictures_of_mapped_designs_name_their_cells(target: str, tmp_path: Path,
+                                                             capsys: pytest.CaptureFixture[str]
+                                                             ) -> None:
+    dot = shutil.which("dot")
+    if dot is None:
+        pytest.skip("Graphviz is not installed")
+    spec = EXAMPLES / "dock_leveler.toml"
+    given = str(EXAMPLES / target) if target.endswith(".toml") else target
+    assert main(["diagram", str(spec), "--netlist", "--target", given]) == 0
+    text = capsys.readouterr().out
+    from fsmsynth import synthesize
+    from fsmsynth.cli.arguments import target_arg
+    design = synthesize(read_table(spec), "d", target=target_arg(given))
+    laid = json.loads(subprocess.run([dot, "-Tjson"], input=text, capture_output=True,
+                                     text=True, check=True).stdout)
+    names = {o["name"] for o in laid["objects"]}
+    assert {g.name for g in design.netlist.gates} <= names
+    assert {ff.name for ff in design.netlist.flip_flops} <= names
+    for g in design.netlist.gates:
+        if not g.kind.startswith("const"):
+            what = g.cell or g.kind.upper()
+            assert f'label="{what}\\n{g.output.removeprefix("fs_")}"' in text

@@ -238,6 +238,9 @@ def parser() -> argparse.ArgumentParser:
                       help="draw the synthesized netlist instead of the state diagram")
     diag.add_argument("--storage", default="d", type=str, help="for --netlist (default d)")
     diag.add_argument("--encoding", default="binary", type=str, help="for --netlist")
+    diag.add_argument("--target", default="two-level",
+                      help="for --netlist: draw the design mapped onto this target (cells, "
+                           "LUTs), as for build")
     diag.add_argument("-o", "--out", help="file to write: .dot text, or .svg/.png/.pdf "
                                           "(needs Graphviz); default: print the DOT text")
 

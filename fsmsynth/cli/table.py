@@ -14,7 +14,7 @@ from fsmsynth.checks.invariants import check_invariants, constrain_outputs, kept
 from fsmsynth.checks.spec_warnings import spec_warnings, warning_lines
 from fsmsynth.checks.table_check import check_table
 from fsmsynth.checks.trace import violation_trace, write_trace_vcd
-from fsmsynth.cli.arguments import encoding_arg, read_table_arg, storage_arg
+from fsmsynth.cli.arguments import encoding_arg, read_table_arg, storage_arg, target_arg
 from fsmsynth.cli.printing import accepted_arg, minimization_lines
 from fsmsynth.flows.files import write_bytes_if_changed, write_if_changed
 from fsmsynth.flows.pipeline import synthesize
@@ -64,7 +64,8 @@ def diagram_command(args: argparse.Namespace) -> int:
     fmt = suffix_format(args.out) if args.out else None  # a bad name fails before any work
     table = read_table_arg(args)
     if args.netlist:
-        design = synthesize(table, storage_arg(args.storage), encoding_arg(args.encoding))
+        design = synthesize(table, storage_arg(args.storage), encoding_arg(args.encoding),
+                            target=target_arg(args.target))
         text = write_netlist_dot(design.netlist)
     else:
         text = write_state_diagram(table, warnings=spec_warnings(table),

@@ -193,10 +193,16 @@ _SHAPES = {"not": "invtriangle", "buf": "triangle", "and": "box", "or": "ellipse
 
 
 def write_netlist_dot(netlist: Netlist) -> str:
-    """Schematic of a netlist: inputs, gates, flip-flops and outputs joined by their nets."""
-    lines = [f"digraph {_q(netlist.name)} {{", "  rankdir=LR;",
-             "  node [fontname=Helvetica, fontsize=10];"]
+    """Schematic of a netlist, structural or mapped: inputs on the left, outputs on the
+    right, flip-flops as records of their pins, and each gate, library cell or look-up table
+    labelled with what it is (``AND``, ``NAND2``, ``LUT4``) and the net it drives, named as
+    in the Verilog (``d0_p2``: the second product of ``D0``)."""
+    lines = [f"digraph {_q(netlist.name)} {{", "  rankdir=LR;", "  nodesep=0.25;",
+             "  ranksep=0.5;", "  node [fontname=Helvetica, fontsize=10];",
+             "  edge [arrowsize=0.6];"]
     driver: dict[str, str] = {}  # net -> DOT endpoint of what drives it
+    lines.append("  { rank=source; "
+                 + " ".join(_q("in:" + i) for i in netlist.inputs) + " }")
     for i in netlist.inputs:
         lines.append(f"  {_q('in:' + i)} [shape=cds, label={_q(i)}];")
         driver[i] = _q("in:" + i)
@@ -206,8 +212,11 @@ def write_netlist_dot(netlist: Netlist) -> str:
         lines.append(f"  {_q(ff.name)} [shape=record, label={_q(record)}];")
         driver[ff.q] = _q(ff.name) + ":q"
     for g in netlist.gates:
-        label = g.kind.upper() if not g.kind.startswith("const") else g.kind[-1]
-        lines.append(f"  {_q(g.name)} [shape={_SHAPES.get(g.kind, 'box')}, label={_q(label)}];")
+        what = g.cell or (g.kind.upper() if not g.kind.startswith("const") else g.kind[-1])
+        net = g.output.removeprefix("fs_")
+        label = what if g.kind.startswith("const") else f"{what}\n{net}"
+        shape = "box" if g.table is not None else _SHAPES.get(g.kind, "box")
+        lines.append(f"  {_q(g.name)} [shape={shape}, label={_q(label)}];")
         driver[g.output] = _q(g.name)
     for g in netlist.gates:
         for net in g.inputs:
@@ -215,6 +224,8 @@ def write_netlist_dot(netlist: Netlist) -> str:
     for ff in netlist.flip_flops:
         for pin, net in ff.pins:
             lines.append(f"  {driver[net]} -> {_q(ff.name)}:{pin.lower()};")
+    lines.append("  { rank=sink; "
+                 + " ".join(_q("out:" + p) for p, _n in netlist.outputs) + " }")
     for port, net in netlist.outputs:
         lines.append(f"  {_q('out:' + port)} [shape=cds, label={_q(port)}];")
         lines.append(f"  {driver[net]} -> {_q('out:' + port)};")
