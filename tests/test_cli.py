@@ -140,11 +140,11 @@ def test_timing_and_its_model_are_public() -> None:
 def test_a_subcommand_reports_an_unknown_option_with_its_own_usage(
         capsys: pytest.CaptureFixture[str]) -> None:
     with pytest.raises(SystemExit) as stop:
-        main(["diagram", LOCKER, "--target", "lut4"])
+        main(["diagram", LOCKER, "--jobs", "2"])
     assert stop.value.code == 2
     err = capsys.readouterr().err
     assert err.startswith("usage: fsmsynth diagram ")
-    assert err.endswith("fsmsynth diagram: error: unrecognized arguments: --target lut4\n")
+    assert err.endswith("fsmsynth diagram: error: unrecognized arguments: --jobs 2\n")
 
 
 @pytest.mark.parametrize("extra, message", [
