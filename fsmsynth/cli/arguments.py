@@ -190,6 +190,9 @@ def parser() -> argparse.ArgumentParser:
     build.add_argument("--testbench", action="store_true",
                        help="also write <name>_tb.v (and <name>_tb.vhd with --hdl vhdl), a "
                             "self-checking testbench from the table")
+    build.add_argument("--report", action="store_true",
+                       help="also write <name>.html: one self-contained page with the diagram, "
+                            "codes, equations, cost, glitches, timing, invariants and a waveform")
     build.add_argument("--bench-vcd", action="store_true",
                        help="with --testbench: the Verilog bench dumps <name>.vcd (every port "
                             "and the design's state_name) when it runs")

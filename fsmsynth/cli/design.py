@@ -82,7 +82,7 @@ def options_of(args: argparse.Namespace) -> BuildOptions:
     storage = storage_arg(args.storage)
     encoding = encoding_arg(args.encoding)
     files = ({"hdl": tuple(args.hdl), "testbench": args.testbench, "cocotb": args.cocotb,
-              "bench_vcd": args.bench_vcd}
+              "bench_vcd": args.bench_vcd, "report": args.report}
              if args.command == "build" else {})
     return BuildOptions(
         storage=tuple(storage) if isinstance(storage, list) else storage,

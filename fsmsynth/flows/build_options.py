@@ -122,6 +122,7 @@ class BuildOptions:
     hdl: tuple[str, ...] = ("verilog",)
     testbench: bool = False
     bench_vcd: bool = False
+    report: bool = False
     cocotb: bool = False
 
     def __post_init__(self) -> None:

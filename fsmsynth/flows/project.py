@@ -74,6 +74,9 @@ def design_files(design: Design, options: BuildOptions) -> dict[str, str]:
     if options.testbench and {"vhdl", "vhdl-rtl"} & set(options.hdl):
         files[f"{name}_tb.vhd"] = write_vhdl_testbench(design.reference,
                                                        clocking=design.clocking)
+    if options.report:
+        from fsmsynth.flows.report import report_page  # Graphviz and the page: on request
+        files[f"{name}.html"] = report_page(design)
     if options.cocotb:
         files[f"{name}_cocotb.py"] = write_cocotb_bench(design.reference,
                                                         clocking=design.clocking)
