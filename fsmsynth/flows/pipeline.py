@@ -2,11 +2,8 @@
 
 from __future__ import annotations
 
-import math
-import time
 from collections.abc import Mapping, Sequence
 from dataclasses import dataclass, replace
-from functools import partial
 
 from fsmsynth.base.choices import UNUSED_POLICIES
 from fsmsynth.base.errors import (
@@ -15,7 +12,6 @@ from fsmsynth.base.errors import (
     VerificationError,
     WarningsAsErrors,
 )
-from fsmsynth.base.frozen import FrozenMap
 from fsmsynth.base.names import port_bits, ports_of
 from fsmsynth.checks.hazards import hazard_free
 from fsmsynth.checks.invariants import InvariantCheck, check_invariants, constrain_outputs
@@ -23,6 +19,7 @@ from fsmsynth.checks.spec_warnings import spec_warnings, strict_message
 from fsmsynth.checks.trace import replay, violation_trace
 from fsmsynth.checks.verify import verify
 from fsmsynth.flows.design import Design
+from fsmsynth.flows.searched_codes import StorageChoice, per_bit, searched_codes
 from fsmsynth.logic.cost import DEFAULT_WEIGHTS, CostWeights, cost_of, logic_shape
 from fsmsynth.logic.cover import minimize_logic
 from fsmsynth.logic.cube import Cube
@@ -31,18 +28,11 @@ from fsmsynth.logic.functions import LogicFunctions
 from fsmsynth.map.realize import map_design
 from fsmsynth.map.targets import Target, target_named
 from fsmsynth.model.clocking import DEFAULT_CLOCKING, Clocking
-from fsmsynth.model.storage import STORAGES, Storage, storage_named
+from fsmsynth.model.storage import STORAGES, Storage
 from fsmsynth.model.table import StateTable
-from fsmsynth.stages.assign.adjacency import adjacency_search
-from fsmsynth.stages.assign.anneal import anneal_search
-from fsmsynth.stages.assign.exhaustive import exhaustive_search
 from fsmsynth.stages.assign.scoring import (
     SEARCHES,
-    UNIT_DISTANCE_PENALTY,
-    Scorer,
     SearchResult,
-    min_width,
-    plain_codes_if_cheaper,
 )
 from fsmsynth.stages.encode import METHODS as ENCODE_METHODS
 from fsmsynth.stages.encode import Encoding, encode
@@ -52,13 +42,6 @@ from fsmsynth.stages.netlist import EDGES, build_netlist
 from fsmsynth.stages.reduce import minimize_states
 from fsmsynth.stages.reduce.tabulation import StateMinimization
 from fsmsynth.stages.registered import delayed_machine, registered_codes
-
-MAX_EXTRA_WIDTH = 3
-"""Searched encodings take codes of up to this many bits more than the fewest (or one-hot
-width, when that is more)."""
-
-
-StorageChoice = str | Storage | Sequence[str | Storage] | Mapping[int, str | Storage]
 
 
 @exclusive
@@ -282,7 +265,7 @@ def _state_codes(recipe: _Recipe, encoding: str | Mapping[str, int | str],
         if given and encoding != "anneal":
             raise OptionError(f"{name} applies to the anneal encoding")
     if isinstance(encoding, str) and encoding in SEARCHES:
-        return _search(recipe.work, encoding, storage, recipe.unused, recipe.weights,
+        return searched_codes(recipe.work, encoding, storage, recipe.unused, recipe.weights,
                        recipe.logic, seed, budget, width, jobs, time_limit, force,
                        recipe.target, recipe.map_for, unit_distance)
     if unit_distance:
@@ -311,7 +294,7 @@ def _built(recipe: _Recipe, codes: Encoding, storage: StorageChoice,
                               "invariants' timing would change: not supported yet")
         machine = work if work.kind == "moore" else delayed_machine(work)
         codes_r = registered_codes(machine, codes, delayed=work.kind == "mealy")
-        kinds = _per_bit(storage, codes.width) + (STORAGES["d"],) * len(work.outputs)
+        kinds = per_bit(storage, codes.width) + (STORAGES["d"],) * len(work.outputs)
         plain = _build(recipe.table, recipe.reduction, machine, codes_r, kinds, recipe.unused,
                        recipe.weights, recipe.logic, (), output_offset=codes.width)
         return _mapped(replace(plain, registered=machine), recipe.target, recipe.map_for)
@@ -325,68 +308,8 @@ def _built(recipe: _Recipe, codes: Encoding, storage: StorageChoice,
     if storage == "per-bit":
         kinds = _cheapest_per_bit(work, codes, recipe.unused, recipe.weights, recipe.logic)
     else:
-        kinds = _per_bit(storage, codes.width)
+        kinds = per_bit(storage, codes.width)
     return recipe.design(work, codes, kinds, recipe.smooth)
-
-
-def _search(table: StateTable, method: str, storage: StorageChoice, unused: str,
-            weights: CostWeights, logic: str, seed: int, budget: int | None,
-            width: int | None, jobs: int, time_limit: float | None,
-            force: bool, target: Target, map_for: str, unit_distance: bool = False
-            ) -> tuple[Encoding, SearchResult | None]:
-    """Codes chosen by one of the searches of :mod:`fsmsynth.stages.assign`."""
-    n = len(table.states)
-    k = width if width is not None else min_width(n)
-    if isinstance(k, bool) or not isinstance(k, int) or k < min_width(n):
-        raise OptionError(f"width {k!r} is too small for {n} states: give a whole number "
-                          f"of at least {min_width(n)} bits")
-    if k > max(min_width(n) + MAX_EXTRA_WIDTH, n):
-        raise OptionError(f"width {k} for {n} states: give at most "
-                          f"{max(min_width(n) + MAX_EXTRA_WIDTH, n)} bits (wider codes cost "
-                          "logic and search time without helping)")
-    if isinstance(jobs, bool) or not isinstance(jobs, int) or jobs < 1:
-        raise OptionError(f"jobs {jobs!r}: give a whole number of at least 1")
-    if budget is not None and (isinstance(budget, bool) or not isinstance(budget, int)
-                               or budget < 0):
-        raise OptionError(f"budget {budget!r}: give a whole number of steps >= 0")
-    if time_limit is not None and not (isinstance(time_limit, (int, float))
-                                       and math.isfinite(time_limit) and time_limit > 0):
-        raise OptionError(f"time limit {time_limit!r}: give a finite number of seconds > 0")
-    # A partial of a module function, not a closure: worker processes receive the scorer.
-    kinds = partial(_per_bit, "d" if storage in ("best", "per-bit") else storage)
-    score = Scorer(table=table, storages=kinds, unused=unused, weights=weights, logic=logic,
-                   target=target, map_for=map_for,
-                   unit_distance=UNIT_DISTANCE_PENALTY if unit_distance else 0.0)
-    started = time.perf_counter()
-    if n == 1 and width is None:  # one state needs no code bits: nothing to search
-        result = SearchResult(codes=(0,), width=0, cost=score((0,), 0)[0], evaluated=1,
-                              proven=True, interrupted=False)
-    elif method == "adjacency":
-        result = adjacency_search(score, table, k, jobs=jobs, time_limit=time_limit)
-    elif method == "exhaustive":
-        result = exhaustive_search(score, n, k, jobs, time_limit=time_limit, force=force)
-    else:
-        result = anneal_search(score, table, k, seed, 400 if budget is None else budget,
-                               jobs=jobs, time_limit=time_limit)
-    result = plain_codes_if_cheaper(result, score, n)
-    result = replace(result, seconds=round(time.perf_counter() - started, 3),
-                     scored_on=target.name)
-    return Encoding(method=method, width=result.width,
-                    codes=FrozenMap(dict(zip(table.states, result.codes)))), result
-
-
-def _per_bit(storage: StorageChoice, width: int) -> tuple[Storage, ...]:
-    if isinstance(storage, (str, Storage)):
-        return (storage_named(storage),) * width
-    if isinstance(storage, Mapping):
-        missing = [b for b in range(width) if b not in storage]
-        if missing or set(storage) - set(range(width)):
-            raise OptionError(f"storage per bit: give a kind for each of bits 0..{width - 1}")
-        return tuple(storage_named(storage[b]) for b in range(width))
-    kinds = tuple(storage_named(s) for s in storage)
-    if len(kinds) != width:
-        raise OptionError(f"storage per bit: {len(kinds)} kinds given for {width} state bits")
-    return kinds
 
 
 def _cheapest_per_bit(table: StateTable, codes: Encoding, unused: str, weights: CostWeights,
