@@ -128,6 +128,17 @@ def name_problem(name: object) -> str | None:
     return None
 
 
+def port_spans(names: Sequence[str]) -> list[tuple[str, int | None, slice]]:
+    """:func:`ports_of` with each port's place in a word over ``names`` (one character per
+    1-bit name): ``word[span]`` is the port's characters, most significant first."""
+    spans: list[tuple[str, int | None, slice]] = []
+    at = 0
+    for port, width in ports_of(names):
+        spans.append((port, width, slice(at, at + (width or 1))))
+        at += width or 1
+    return spans
+
+
 def did_you_mean(name: str, known: Sequence[str]) -> str:
     """``"; did you mean 'on'?"`` for the known names closest to a misspelled ``name``
     (at most three, by difflib's similarity ratio of at least 0.6), or ``""``."""

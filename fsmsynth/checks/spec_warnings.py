@@ -15,7 +15,7 @@ from collections.abc import Iterable, Sequence
 from dataclasses import dataclass
 
 from fsmsynth.base.errors import TableError
-from fsmsynth.base.names import did_you_mean, ports_of
+from fsmsynth.base.names import did_you_mean, port_spans, ports_of
 from fsmsynth.language.guards import short_guard
 from fsmsynth.logic import bdd
 from fsmsynth.logic.cube import Cube
@@ -194,10 +194,9 @@ def _constant(table: StateTable, reachable: Sequence[str]) -> list[SpecWarning]:
         words = [table.output_cube_of(s) for s in reachable]
     else:
         words = [r[3] or "" for s in reachable for r in table.rows_of(s)]
-    found, at = [], 0
-    for port, width in ports_of(table.outputs):
-        chars = {w[b] for w in words for b in range(at, at + (width or 1)) if w}
-        at += width or 1
+    found = []
+    for port, width, span in port_spans(table.outputs):
+        chars = {c for w in words if w for c in w[span]}
         value = "all ones" if width else "1"
         if "1" not in chars:
             how = ("never set: free everywhere" if "0" not in chars else

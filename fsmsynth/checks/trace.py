@@ -15,7 +15,7 @@ import io
 from collections.abc import Sequence
 from dataclasses import dataclass
 
-from fsmsynth.base.names import ports_of
+from fsmsynth.base.names import port_spans, ports_of
 from fsmsynth.checks.invariants import InvariantCheck
 from fsmsynth.model.table import StateTable
 
@@ -45,8 +45,9 @@ class Trace:
         and each output port (vectors as numbers; ``-`` where free)."""
         in_ports, out_ports = ports_of(self.inputs), ports_of(self.outputs)
         head = ["cycle", "state", *(p for p, _w in in_ports), *(p for p, _w in out_ports)]
-        body = [[str(k), c.state or "?", *_values(c.inputs, in_ports),
-                 *_values(c.outputs, out_ports)] for k, c in enumerate(self.cycles, start=1)]
+        body = [[str(k), c.state or "?", *_values(c.inputs, self.inputs),
+                 *_values(c.outputs, self.outputs)]
+                for k, c in enumerate(self.cycles, start=1)]
         return [head, *body]
 
     def table_text(self, *, note: bool = True) -> str:
@@ -57,11 +58,10 @@ class Trace:
         return "\n".join(lines + ([self.note] if self.note and note else [])) + "\n"
 
 
-def _values(word: str, ports: Sequence[tuple[str, int | None]]) -> list[str]:
-    out, at = [], 0
-    for _port, width in ports:
-        chars = word[at:at + (width or 1)]
-        at += width or 1
+def _values(word: str, names: Sequence[str]) -> list[str]:
+    out = []
+    for _port, _width, span in port_spans(names):
+        chars = word[span]
         out.append(str(int(chars, 2)) if "-" not in chars and chars else chars or "-")
     return out
 
@@ -100,19 +100,16 @@ def write_trace_vcd(trace: Trace, name: str, *, period: int = 10) -> str:
                    "files)", version="fsmsynth") as writer:
         clk = writer.register_var(name, "clk", "wire", size=1, init=0)
         state = writer.register_var(name, "state", "string", init="")
-        ins = [(writer.register_var(name, p, "wire", size=w or 1), w)
-               for p, w in ports_of(trace.inputs)]
-        outs = [(writer.register_var(name, p, "wire", size=w or 1), w)
-                for p, w in ports_of(trace.outputs)]
+        ins = [(writer.register_var(name, p, "wire", size=w or 1), w, span)
+               for p, w, span in port_spans(trace.inputs)]
+        outs = [(writer.register_var(name, p, "wire", size=w or 1), w, span)
+                for p, w, span in port_spans(trace.outputs)]
         for k, cycle in enumerate(trace.cycles):
             t = k * period
             writer.change(state, t, cycle.state or "?")
             for variables, word in ((ins, cycle.inputs), (outs, cycle.outputs)):
-                at = 0
-                for var, width in variables:
-                    chars = word[at:at + (width or 1)]
-                    at += width or 1
-                    value = chars.replace("-", "x")
+                for var, width, span in variables:
+                    value = word[span].replace("-", "x")
                     writer.change(var, t, value if width else value[0])
             writer.change(clk, t + period // 2, 1)
             writer.change(clk, t + period - 1, 0)

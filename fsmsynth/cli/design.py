@@ -7,6 +7,7 @@ import argparse
 import csv
 import io
 import json
+from collections import Counter
 from pathlib import Path
 
 from fsmsynth.base.frozen import FrozenMap
@@ -142,7 +143,7 @@ def report_lines(design: Design, args: argparse.Namespace, written: dict[str, bo
     if not full and len(encoded.states) > 16:
         codes = f"{design.encoding.width} bits; --json lists the codes"
     per_bit = (", ".join(f"Q{b} {s.name.upper()}" for b, s in enumerate(design.storages))
-               if full else ", ".join(f"{n} {k.upper()}" for k, n in _kind_counts(
+               if full else ", ".join(f"{n} {k.upper()}" for k, n in Counter(
                    [s.name for s in design.storages]).items()))
     kinds = ("no" if design.storage == "none" else
              design.storage.upper() if design.storage != "mixed" else f"mixed ({per_bit})")
@@ -192,13 +193,6 @@ def report_lines(design: Design, args: argparse.Namespace, written: dict[str, bo
     return out
 
 
-def _kind_counts(kinds: list[str]) -> dict[str, int]:
-    counts: dict[str, int] = {}
-    for kind in kinds:
-        counts[kind] = counts.get(kind, 0) + 1
-    return counts
-
-
 def _equation_lines(design: Design, full: bool) -> list[str]:
     equations = list(design.equations.values())
     if full:
@@ -222,7 +216,7 @@ def _glitch_lines(design: Design, full: bool) -> list[str]:
     if len(verdicts) <= 12:
         return [f"  {line}" for line in verdicts]
     glitching = sorted({g.output for g in report.glitches})
-    kinds = _kind_counts([g.kind for g in report.glitches])
+    kinds = Counter([g.kind for g in report.glitches])
     return [f"  {len(glitching)} of {len(report.outputs)} outputs can glitch ("
             + ", ".join(f"{k} {n}" for k, n in sorted(kinds.items())) + " cases)"
             + (": " + ", ".join(glitching[:12]) + (", ..." if len(glitching) > 12 else "")
@@ -311,7 +305,7 @@ def compare_command(args: argparse.Namespace) -> int:
         return 0
     texts = [[str(x if not isinstance(x, float) else f"{x:g}") for x in r] for r in records]
     for text in texts:  # repeated kinds as counts: "6 jk" for a kind per bit of six bits
-        text[3] = ", ".join(f"{n} {k}" for k, n in _kind_counts(text[3].split()).items())
+        text[3] = ", ".join(f"{n} {k}" for k, n in Counter(text[3].split()).items())
     widths = [max(len(h), *(len(t[i]) for t in texts)) for i, h in enumerate(header)]
     on = "" if result.target == "two-level" else f" on {result.target}"
     print(f"{result.machine}: {len(records)} designs{on}, cheapest first")

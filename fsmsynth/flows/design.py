@@ -153,7 +153,7 @@ class Design:
         """The present state code of the netlist (its state flip-flops, most significant
         first) and each state's code, as ``hdl`` writes them, for the assertions."""
         m = self.rtl
-        width = self.encoding.width - (len(self.table.outputs) if self.registered else 0)
+        width = self.state_width
         nets = [ff.q for ff in self.netlist.flip_flops[:width]][::-1]  # bit 0 first
         codes = {s.name: format(s.code, f"0{m.width}b")[m.width - width:] for s in m.states}
         if hdl == "verilog":
@@ -171,9 +171,8 @@ class Design:
         base = (self.minimization.table if self.minimization
                 else constrain_outputs(self.table))
         codes = dict(self.encoding.codes)
-        width = self.encoding.width
+        width = self.state_width
         if self.registered is not None:  # the output bits sit above the state's own code
-            width -= len(self.table.outputs)
             mask = (1 << width) - 1
             own = {name.rsplit("/", 1)[0] if self.table.kind == "mealy" else name: code & mask
                    for name, code in reversed(list(codes.items()))}
@@ -219,6 +218,12 @@ class Design:
         if self.registered is not None and self.table.kind == "mealy":
             return delayed_machine(self.table, keep_dont_cares=True)
         return self.table
+
+    @property
+    def state_width(self) -> int:
+        """Code bits of the state itself: the encoding's, less the registered outputs' bits
+        placed above them."""
+        return self.encoding.width - (len(self.table.outputs) if self.registered else 0)
 
     @property
     def clocking(self) -> Clocking:

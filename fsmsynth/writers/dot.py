@@ -15,7 +15,7 @@ from pathlib import Path
 from typing import Any
 
 from fsmsynth.base.errors import OptionError
-from fsmsynth.base.names import did_you_mean, ports_of
+from fsmsynth.base.names import did_you_mean, port_spans
 from fsmsynth.checks.spec_warnings import SpecWarning, reachable_states
 from fsmsynth.language.guards import short_guard
 from fsmsynth.logic import bdd
@@ -137,10 +137,9 @@ def _shown(table: StateTable, groups: dict[str, dict[tuple[str | None, str], Any
 def _said(word: str, outputs: tuple[str, ...]) -> str:
     """``pump=1 level=3``: the outputs a word sets to something other than 0, by name
     (free ones and zeros left out)."""
-    parts, at = [], 0
-    for port, width in ports_of(outputs):
-        chars = word[at:at + (width or 1)]
-        at += width or 1
+    parts = []
+    for port, _width, span in port_spans(outputs):
+        chars = word[span]
         if "1" in chars and "-" not in chars:
             parts.append(f"{port}={int(chars, 2)}")
         elif "1" in chars:

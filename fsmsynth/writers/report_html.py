@@ -12,7 +12,7 @@ import html
 from collections.abc import Sequence
 from dataclasses import dataclass
 
-from fsmsynth.base.names import ports_of
+from fsmsynth.base.names import port_spans
 from fsmsynth.checks.trace import Trace
 from fsmsynth.version import __version__
 
@@ -90,11 +90,8 @@ def waveform_svg(trace: Trace, *, cycles: int = 16) -> str:
     signals: list[tuple[str, list[str], bool]] = [
         ("state", [c.state or "?" for c in shown], True)]
     for names, pick in ((trace.inputs, "inputs"), (trace.outputs, "outputs")):
-        at = 0
-        for port, width in ports_of(names):
-            n = width or 1
-            values = [getattr(c, pick)[at:at + n] for c in shown]
-            at += n
+        for port, width, span in port_spans(names):
+            values = [getattr(c, pick)[span] for c in shown]
             if width is None:
                 signals.append((port, values, False))
             else:

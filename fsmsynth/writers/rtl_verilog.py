@@ -14,7 +14,7 @@ from __future__ import annotations
 
 from collections.abc import Callable
 
-from fsmsynth.base.names import ports_of
+from fsmsynth.base.names import port_spans, ports_of
 from fsmsynth.logic.cube import Cube
 from fsmsynth.version import __version__
 from fsmsynth.writers.rtl_machine import RtlInvariant, RtlMachine, RtlState
@@ -24,13 +24,11 @@ from fsmsynth.writers.verilog import register_block
 def _literals(cube: Cube, signals: tuple[str, ...]) -> list[str]:
     """The literals of a cube over ``signals`` (1-bit names, vectors MSB first): a vector
     fixed whole is a comparison (``mode == 2'd3``), others their bits (``~mode[0]``)."""
-    parts, at = [], 0
-    for port, width in ports_of(signals):
-        n = width or 1
-        chars = [cube.literal_char(at + k) for k in range(n)]
-        at += n
+    parts, text = [], cube.to_string(len(signals))
+    for port, width, span in port_spans(signals):
+        chars = text[span]
         if width is not None and "-" not in chars:
-            parts.append(f"{port} == {width}'d{int(''.join(chars), 2)}")
+            parts.append(f"{port} == {width}'d{int(chars, 2)}")
             continue
         for k, char in enumerate(chars):
             name = port if width is None else f"{port}[{width - 1 - k}]"
@@ -52,13 +50,12 @@ def expression(terms: tuple[Cube, ...], signals: tuple[str, ...]) -> str:
 
 def _assignments(word: str, outputs: tuple[str, ...], suffix: str = "") -> list[str]:
     """``lamp = 1'b1;``: the outputs of ``word`` that differ from the default 0."""
-    out, at = [], 0
-    for port, width in ports_of(outputs):
-        n = width or 1
-        value = int(word[at:at + n], 2)
-        at += n
+    out = []
+    for port, width, span in port_spans(outputs):
+        value = int(word[span], 2)
         if value:
-            out.append(f"{port}{suffix} = {n}'d{value};" if width else f"{port}{suffix} = 1'b1;")
+            out.append(f"{port}{suffix} = {width}'d{value};" if width
+                       else f"{port}{suffix} = 1'b1;")
     return out
 
 
@@ -143,13 +140,10 @@ def _registers(m: RtlMachine) -> list[str]:
     on_reset = [f"state <= {m.constant(m.reset)};"]
     on_edge = ["state <= state_next;"]
     if m.registered:
-        at = 0
-        for port, width in ports_of(m.outputs):
-            n = width or 1
-            value = int(reset_word[at:at + n], 2)
-            on_reset.append(f"{port} <= {n}'d{value};" if width else f"{port} <= 1'b{value};")
+        for port, width, span in port_spans(m.outputs):
+            value = int(reset_word[span], 2)
+            on_reset.append(f"{port} <= {width}'d{value};" if width else f"{port} <= 1'b{value};")
             on_edge.append(f"{port} <= {port}_d;")
-            at += n
     what = "State register" + (" and output registers" if m.registered else "")
     c = m.clocking
     return [f"// {what}: {m.edge} edge, {c.describe()}; reset to {m.reset}.",

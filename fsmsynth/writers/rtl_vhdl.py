@@ -15,7 +15,7 @@ from __future__ import annotations
 
 from collections.abc import Callable
 
-from fsmsynth.base.names import ports_of
+from fsmsynth.base.names import port_spans, ports_of
 from fsmsynth.logic.cube import Cube
 from fsmsynth.version import __version__
 from fsmsynth.writers.rtl_machine import RtlMachine, RtlState
@@ -24,13 +24,11 @@ from fsmsynth.writers.vhdl import check_vhdl_names, port_lines, register_process
 
 
 def _literals(cube: Cube, signals: tuple[str, ...]) -> list[str]:
-    parts, at = [], 0
-    for port, width in ports_of(signals):
-        n = width or 1
-        chars = [cube.literal_char(at + k) for k in range(n)]
-        at += n
+    parts, text = [], cube.to_string(len(signals))
+    for port, width, span in port_spans(signals):
+        chars = text[span]
         if width is not None and "-" not in chars:
-            parts.append(f'{port} = "{"".join(chars)}"')
+            parts.append(f'{port} = "{chars}"')
             continue
         for k, char in enumerate(chars):
             name = port if width is None else f"{port}({width - 1 - k})"
@@ -53,11 +51,9 @@ def _value(bits: str, width: int | None) -> str:
 
 
 def _assignments(word: str, outputs: tuple[str, ...], suffix: str) -> list[str]:
-    out, at = [], 0
-    for port, width in ports_of(outputs):
-        n = width or 1
-        bits = word[at:at + n]
-        at += n
+    out = []
+    for port, width, span in port_spans(outputs):
+        bits = word[span]
         if "1" in bits:
             out.append(f"{port}{suffix} <= {_value(bits, width)};")
     return out
@@ -111,12 +107,10 @@ def _registers(m: RtlMachine) -> list[str]:
     on_reset = [f"state <= {m.constant(m.reset)};"]
     on_edge = ["state <= state_next;"]
     if m.registered:
-        word, at = m.reset_word(), 0
-        for port, width in ports_of(m.outputs):
-            n = width or 1
-            on_reset.append(f"{port} <= {_value(word[at:at + n], width)};")
+        word = m.reset_word()
+        for port, width, span in port_spans(m.outputs):
+            on_reset.append(f"{port} <= {_value(word[span], width)};")
             on_edge.append(f"{port} <= {port}_d;")
-            at += n
     what = "State register" + (" and output registers" if m.registered else "")
     return [f"-- {what}: {m.edge} edge, {m.clocking.describe()}; reset to {m.reset}.",
             *register_process("registers", m.edge, m.clocking, on_reset, on_edge)]
