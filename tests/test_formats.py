@@ -98,7 +98,7 @@ def test_unknown_key() -> None:
     assert error_of(text) == ("lamp.toml:3: unknown key 'knd': the keys are name, kind, inputs, "
                               "outputs, reset, states, state_outputs, transition, "
                               "every_state, default_outputs, otherwise, invariants, final, "
-                              "accept_warnings, clocking")
+                              "accept_warnings, clocking, timers, counters")
 
 
 def test_guarded_form_keys_are_refused_beside_cube_rows() -> None:

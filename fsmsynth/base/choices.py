@@ -8,5 +8,7 @@ LOGIC_METHODS = ("heuristic", "exact", "auto")
 """Two-level minimizers: Espresso, proven minimum covers, or exact up to 10 variables."""
 DEFAULT_ENCODINGS = ("binary", "gray", "one-hot")
 """The encodings ``compare`` tries unless told."""
+TIMER_CHOICES = ("counters", "unrolled", "cheaper")
+"""How timers and counters are built: counter blocks, unrolled into states, or the cheaper."""
 DEFAULT_STORAGES = ("d", "de", "jk", "sr", "t", "best")
 """The storage kinds ``compare`` tries unless told: every kind, and the cheapest per bit."""

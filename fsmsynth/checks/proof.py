@@ -57,6 +57,8 @@ class Verification:
     symbolic: bool = False
     """Whether the walk compared each node on BDDs (many input classes) rather than over
     input classes of the whole table; ``input_classes`` is then 0."""
+    note: str = ""
+    """How a timed machine's proof went (:mod:`fsmsynth.checks.timed_proof`), else empty."""
 
     def __bool__(self) -> bool:
         return self.equivalent
@@ -70,6 +72,8 @@ class Verification:
                     f"({self.product_states} product states, {inputs})")
             if self.safe_unused:
                 text += "; every unused code goes to reset in one clock"
-            return text
+            return text + (f"; {self.note}" if self.note else "")
         assert self.counterexample is not None
+        if self.counterexample.signal == "(part)":
+            return f"NOT verified: {self.counterexample.actual} ({self.note})"
         return "NOT verified: " + self.counterexample.describe()

@@ -5,7 +5,7 @@ from __future__ import annotations
 
 import argparse
 import math
-from typing import TYPE_CHECKING
+from typing import TYPE_CHECKING, Any
 
 # Only modules that load nothing heavy: `fsmsynth --version` and `--help` build the parser
 # without the library (the readers are imported where an argument is read).
@@ -13,6 +13,7 @@ from fsmsynth.base.choices import (
     DEFAULT_ENCODINGS,
     DEFAULT_STORAGES,
     LOGIC_METHODS,
+    TIMER_CHOICES,
     UNUSED_POLICIES,
 )
 from fsmsynth.base.errors import OptionError
@@ -22,7 +23,6 @@ from fsmsynth.version import __version__
 if TYPE_CHECKING:
     from fsmsynth.logic.cost import CostWeights
     from fsmsynth.map.targets import Target
-    from fsmsynth.model.table import StateTable
 
 
 def encoding_arg(text: str) -> str | dict[str, str]:
@@ -101,7 +101,23 @@ def table_settings(command: argparse.ArgumentParser) -> None:
     group.add_argument("--kind", choices=("mealy", "moore"), help="default mealy")
 
 
-def read_table_arg(args: argparse.Namespace) -> StateTable:
+TIMED_COMMANDS = ("build", "compare", "check", "diagram")
+"""The commands that take a spec with timers and counters."""
+
+
+def read_table_arg(args: argparse.Namespace) -> Any:
+    """The spec's table; a spec with timers and counters is refused (see
+    :func:`read_machine_arg`)."""
+    from fsmsynth.model.timers import TimedMachine
+    machine = read_machine_arg(args)
+    if isinstance(machine, TimedMachine):
+        raise OptionError(f"{args.spec}: {args.command} does not take timers and counters "
+                          f"yet; {', '.join(TIMED_COMMANDS)} do")
+    return machine
+
+
+def read_machine_arg(args: argparse.Namespace) -> Any:
+    """The spec's table, or its timed machine when it declares timers or counters."""
     from fsmsynth.formats import read_table
     from fsmsynth.formats.csv_table import SETTINGS
     settings = {k: getattr(args, k) for k in SETTINGS if getattr(args, k) is not None}
@@ -148,6 +164,10 @@ def design_options(command: argparse.ArgumentParser) -> None:
                               "of the outputs under single-input changes; registered: each "
                               "output from its own flip-flop (Mealy outputs one clock later); "
                               "default combinational")
+    command.add_argument("--timers", default="counters", choices=TIMER_CHOICES,
+                         help="timers and counters: counters (a block beside the machine), "
+                              "unrolled (into states), or cheaper (build both, keep the "
+                              "cheaper); default counters")
     command.add_argument("--unused", default="dont-care", choices=UNUSED_POLICIES,
                          help="unused state codes: don't cares, or safe (go to reset)")
     command.add_argument("--logic", default="heuristic", choices=LOGIC_METHODS,

@@ -14,6 +14,7 @@ from fsmsynth.base.frozen import FrozenMap
 from fsmsynth.checks.timing import timing
 from fsmsynth.cli.arguments import (
     encoding_arg,
+    read_machine_arg,
     read_table_arg,
     storage_arg,
     target_arg,
@@ -74,6 +75,13 @@ def design_report(design: Design) -> dict[str, object]:
         "hazard_free_outputs": list(design.hazard_free),
         "multi_bit_steps": [list(x) for x in design.multi_bit_steps],
         "warnings": [w.as_dict() for w in design.warnings],
+        "timers": None if design.timed is None else {
+            "built": design.timed.choice,
+            "blocks": [{"name": b.block.name, "kind": type(b.block).__name__.lower(),
+                        "size": b.block.top + (1 if b.block.actions == ("start",) else 0),
+                        "width": b.block.width, "storage": b.storage.name,
+                        "cost": b.cost.total} for b in design.timed.blocks],
+            "costs": dict(design.timed.alternatives)},
     }
 
 
@@ -95,11 +103,12 @@ def options_of(args: argparse.Namespace) -> BuildOptions:
         map_for=args.map_for, outputs=args.outputs, unit_distance=args.unit_distance,
         strict=args.strict, accept_warnings=accepted_arg(args),
         clock_port=args.clock_port, reset_port=args.reset_port, reset_style=args.reset_style,
-        reset_active=args.reset_active, enable_port=args.enable_port, **files)
+        reset_active=args.reset_active, enable_port=args.enable_port,
+        timers=args.timers, **files)
 
 
 def build_command(args: argparse.Namespace) -> int:
-    table = read_table_arg(args)
+    table = read_machine_arg(args)
     options = options_of(args)
     design = synthesize_with(table, options)
     print_warnings(design.warnings)
@@ -160,6 +169,8 @@ def report_lines(design: Design, args: argparse.Namespace, written: dict[str, bo
                    f"{a.seconds:g} s")
     if design.minimization is not None:
         out += minimization_lines(design.minimization, len(table.states))
+    if design.timed is not None:
+        out += ["timers and counters:"] + [f"  {line}" for line in design.timed.describe()]
     out += ["", "Equations:"] + _equation_lines(design, full)
     c = design.two_level_cost or design.cost  # the two-level figures, on any target
     proof = (", proven minimal sums of products" if design.cover.proven
@@ -256,8 +267,8 @@ def timing_command(args: argparse.Namespace) -> int:
 
 
 def compare_command(args: argparse.Namespace) -> int:
-    table = read_table_arg(args)
-    warnings = run_warnings(table, args)
+    table = read_machine_arg(args)
+    warnings = run_warnings(getattr(table, "control", table), args)
     options = dict(storages=args.storages, encodings=args.encodings, logic=args.logic,
                    weights=weights_arg(args.weights), target=target_arg(args.target),
                    map_for=args.map_for)
@@ -291,6 +302,11 @@ def compare_command(args: argparse.Namespace) -> int:
                         row.cost["logic_area"], row.cost["flip_flop_area"], conversion,
                         row.cost["depth"], " ".join(f"{k}:{n}" for k, n in cells.items()),
                         row.verified])
+    if any(row.timers for row in result.rows):  # timers: both ways side by side
+        header += ["counters", "unrolled"]
+        for record, row in zip(records, result.rows):
+            ways = row.timers or {}
+            record += [ways.get("counters", ""), ways.get("unrolled", "")]
     if args.json:
         print(json.dumps({"machine": result.machine,
                           "designs": [dict(zip(header, r)) for r in records],
@@ -305,7 +321,8 @@ def compare_command(args: argparse.Namespace) -> int:
         return 0
     texts = [[str(x if not isinstance(x, float) else f"{x:g}") for x in r] for r in records]
     for text in texts:  # repeated kinds as counts: "6 jk" for a kind per bit of six bits
-        text[3] = ", ".join(f"{n} {k}" for k, n in Counter(text[3].split()).items())
+        text[3] = ", ".join(f"{n} {k}" if ":" not in k else k
+                            for k, n in Counter(text[3].split()).items())
     widths = [max(len(h), *(len(t[i]) for t in texts)) for i, h in enumerate(header)]
     on = "" if result.target == "two-level" else f" on {result.target}"
     print(f"{result.machine}: {len(records)} designs{on}, cheapest first")

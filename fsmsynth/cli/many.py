@@ -25,6 +25,7 @@ from fsmsynth.flows.project_file import read_project
 from fsmsynth.flows.sweep import sweep
 from fsmsynth.formats import read_table
 from fsmsynth.map.targets import Target
+from fsmsynth.model.table import StateTable
 
 
 def executor_of(args: argparse.Namespace) -> tuple[Executor | None, Callable[[], None]]:
@@ -93,7 +94,11 @@ def sweep_command(args: argparse.Namespace) -> int:
     tables, options, unreadable = [], [], []
     for spec in project.specs:  # a bad spec is reported and left out; the others are swept
         try:
-            tables.append(read_table(spec.path))
+            table = read_table(spec.path)
+            if not isinstance(table, StateTable):
+                raise OptionError(f"{spec.path}: sweep does not take timers and counters "
+                                  "yet; build-all does")
+            tables.append(table)
             options.append(spec.options)  # the project's options, as build-all uses them
         except FsmSynthError as exc:
             unreadable.append(str(exc))

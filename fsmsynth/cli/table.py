@@ -13,14 +13,23 @@ from fsmsynth.base.errors import OptionError
 from fsmsynth.checks.invariants import check_invariants, constrain_outputs, kept_by_reduction
 from fsmsynth.checks.spec_warnings import spec_warnings, warning_lines
 from fsmsynth.checks.table_check import check_table
+from fsmsynth.checks.timed_proof import check_timed_invariants
 from fsmsynth.checks.trace import violation_trace, write_trace_vcd
-from fsmsynth.cli.arguments import encoding_arg, read_table_arg, storage_arg, target_arg
+from fsmsynth.cli.arguments import (
+    encoding_arg,
+    read_machine_arg,
+    read_table_arg,
+    storage_arg,
+    target_arg,
+)
 from fsmsynth.cli.printing import accepted_arg, minimization_lines
 from fsmsynth.flows.files import write_bytes_if_changed, write_if_changed
 from fsmsynth.flows.pipeline import synthesize
 from fsmsynth.flows.rewrite import rewrite_spec
 from fsmsynth.formats.text_files import read_text
+from fsmsynth.model.timers import TimedMachine
 from fsmsynth.stages.reduce import minimize_states
+from fsmsynth.stages.unroll import unroll
 from fsmsynth.writers.dot import render, suffix_format, write_netlist_dot, write_state_diagram
 from fsmsynth.writers.kmap import MAX_VARIABLES, support, write_karnaugh
 from fsmsynth.writers.spec_toml import write_spec
@@ -62,14 +71,18 @@ def reduce_command(args: argparse.Namespace) -> int:
 
 def diagram_command(args: argparse.Namespace) -> int:
     fmt = suffix_format(args.out) if args.out else None  # a bad name fails before any work
-    table = read_table_arg(args)
+    table = read_machine_arg(args)
+    notes = None
+    if isinstance(table, TimedMachine) and not args.netlist:
+        notes = table.state_notes()
+        table = table.control
     if args.netlist:
         design = synthesize(table, storage_arg(args.storage), encoding_arg(args.encoding),
                             target=target_arg(args.target))
         text = write_netlist_dot(design.netlist)
     else:
         text = write_state_diagram(table, warnings=spec_warnings(table),
-                                   focus=tuple(args.focus or ()))
+                                   focus=tuple(args.focus or ()), notes=notes)
     if not args.out:
         print(text, end="")
         return 0
@@ -114,11 +127,17 @@ def kmap_command(args: argparse.Namespace) -> int:
 
 
 def check_command(args: argparse.Namespace) -> int:
-    table = read_table_arg(args)
+    machine = read_machine_arg(args)
+    table = machine.control if isinstance(machine, TimedMachine) else machine
     report = check_table(table, accepted_arg(args))
-    kept = check_invariants(table)
+    if isinstance(machine, TimedMachine):
+        kept = check_timed_invariants(machine)
+        unrolled = unroll(machine, signals=True) if kept.walked and kept.violation else None
+        trace = violation_trace(unrolled, kept) if unrolled is not None else None
+    else:
+        kept = check_invariants(table)
+        trace = violation_trace(table, kept)
     status = 0 if kept and not (args.strict and report.warnings) else 2
-    trace = violation_trace(table, kept)
     if args.vcd and trace is not None:  # the run that breaks it, for a waveform viewer
         write_if_changed(args.vcd, write_trace_vcd(trace, table.name))
     if args.json:
@@ -139,6 +158,9 @@ def check_command(args: argparse.Namespace) -> int:
         return status
     print(f"{args.spec}: valid {table.kind} table '{table.name}': {len(table.states)} states, "
           f"{len(table.inputs)} inputs, {len(table.outputs)} outputs, reset {table.reset!r}")
+    if isinstance(machine, TimedMachine):
+        print("  timers and counters: " + "; ".join(b.describe() for b in machine.blocks)
+              + " (their readings and actions count among the inputs and outputs)")
     for line in report.lines(besides_warnings=True):
         print(f"  note: {line}")
     for line in warning_lines(report.warnings, word="  error" if args.strict else "  warning"):

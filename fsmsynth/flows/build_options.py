@@ -11,7 +11,7 @@ import math
 from dataclasses import dataclass, field, fields, replace
 from pathlib import Path
 
-from fsmsynth.base.choices import LOGIC_METHODS, UNUSED_POLICIES
+from fsmsynth.base.choices import LOGIC_METHODS, TIMER_CHOICES, UNUSED_POLICIES
 from fsmsynth.base.errors import OptionError
 from fsmsynth.base.frozen import FrozenMap
 from fsmsynth.checks.spec_warnings import accept_problem
@@ -31,7 +31,8 @@ ENCODINGS = (*ENCODE_METHODS, *SEARCHES)
 """Every encoding by name: the direct ones and the searches."""
 CHOICES: dict[str, tuple[str, ...]] = {
     "logic": LOGIC_METHODS, "unused": UNUSED_POLICIES, "outputs": OUTPUT_KINDS,
-    "clock_edge": EDGES, "map_for": ("area", "delay")}
+    "clock_edge": EDGES, "map_for": ("area", "delay"),
+    "timers": TIMER_CHOICES}
 
 
 def _whole(value: object, least: int) -> bool:
@@ -119,6 +120,7 @@ class BuildOptions:
     reset_style: str | None = None
     reset_active: str | None = None
     enable_port: str | None = None
+    timers: str = "counters"
     hdl: tuple[str, ...] = ("verilog",)
     testbench: bool = False
     bench_vcd: bool = False

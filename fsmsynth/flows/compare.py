@@ -14,6 +14,7 @@ from fsmsynth.logic.cost import DEFAULT_WEIGHTS, CostWeights
 from fsmsynth.map.targets import Target, target_named
 from fsmsynth.model.storage import STORAGES
 from fsmsynth.model.table import StateTable
+from fsmsynth.model.timers import TimedMachine
 from fsmsynth.writers.spec_toml import write_spec
 
 
@@ -32,6 +33,9 @@ class ComparisonRow:
     verified: bool
     logic: str
     proven: bool
+    timers: Mapping[str, float] | None = None
+    """For a machine with timers and counters: the total cost of each way it was built
+    (``counters``, and ``unrolled`` where unrolling was possible); the row is the cheaper."""
 
     @property
     def total(self) -> float:
@@ -53,19 +57,26 @@ class Comparison:
         return self.rows[0]
 
 
-def _one(spec: str, storage: str, encoding: str, weights: CostWeights, logic: str,
-         minimize: bool, unused: str, target: str | Target = "two-level",
+def _one(spec: str | TimedMachine, storage: str, encoding: str, weights: CostWeights,
+         logic: str, minimize: bool, unused: str, target: str | Target = "two-level",
          map_for: str = "area") -> ComparisonRow:
-    """Synthesize one combination; takes spec text so that it pickles for process pools."""
-    design = synthesize(parse_spec(spec), storage, encoding, weights=weights, logic=logic,
-                        minimize=minimize, unused=unused, target=target, map_for=map_for)
-    return ComparisonRow(storage=storage, encoding=encoding,
-                         kinds=tuple(s.name for s in design.storages),
+    """Synthesize one combination; takes spec text (or a timed machine) so that it pickles
+    for process pools.  Timers and counters are built both ways, keeping the cheaper."""
+    machine = spec if isinstance(spec, TimedMachine) else parse_spec(spec)
+    design = synthesize(machine, storage, encoding, weights=weights, logic=logic,
+                        minimize=minimize, unused=unused, target=target, map_for=map_for,
+                        timers="cheaper")
+    kinds = tuple(s.name for s in design.storages)
+    if design.timed is not None:
+        kinds += tuple(f"{b.block.name}:{b.storage.name}" for b in design.timed.blocks)
+    return ComparisonRow(storage=storage, encoding=encoding, kinds=kinds,
                          cost=design.cost.as_dict(), verified=bool(design.verification),
-                         logic=design.cover.method, proven=design.cover.proven)
+                         logic=design.cover.method, proven=design.cover.proven,
+                         timers=None if design.timed is None
+                         else dict(design.timed.alternatives))
 
 
-def compare(table: StateTable, storages: Sequence[str] = DEFAULT_STORAGES,
+def compare(table: StateTable | TimedMachine, storages: Sequence[str] = DEFAULT_STORAGES,
             encodings: Sequence[str] = DEFAULT_ENCODINGS, *, executor: Executor | None = None,
             weights: CostWeights = DEFAULT_WEIGHTS, logic: str = "heuristic",
             minimize: bool = True, unused: str = "dont-care",
@@ -79,13 +90,18 @@ def compare(table: StateTable, storages: Sequence[str] = DEFAULT_STORAGES,
     executor:
         A :class:`concurrent.futures.Executor` (a process pool, or a cluster executor with
         that interface) to run the designs on; by default they run here, one by one.
+    table:
+        The machine; for one with timers and counters (a
+        :class:`~fsmsynth.model.timers.TimedMachine`) each row prices the counters with its
+        storage kind, builds the machine unrolled too where it can, keeps the cheaper, and
+        gives both costs on ``row.timers``.
     weights, logic, minimize, unused, target, map_for:
         As for :func:`fsmsynth.synthesize`; with a target, designs rank by its area and
         each row's ``cost`` has the target's figures (cells, areas, depth, storage).
     """
     if not storages or not encodings:
         raise OptionError("compare: give at least one storage kind and one encoding")
-    spec = write_spec(table)
+    spec = table if isinstance(table, TimedMachine) else write_spec(table)
     target = target_named(target)
     # "best" is the cheapest of every single kind and the per-bit choice: run each of those
     # once, shared with the single kinds asked for, instead of again inside synthesize().

@@ -7,6 +7,7 @@ from collections.abc import Callable, Mapping
 from dataclasses import dataclass
 from functools import cached_property
 
+from fsmsynth.base.errors import OptionError
 from fsmsynth.checks.hazards import GlitchReport, glitch_report
 from fsmsynth.checks.invariants import InvariantCheck, constrain_outputs
 from fsmsynth.checks.proof import Verification
@@ -25,11 +26,13 @@ from fsmsynth.stages.assign.scoring import (
     SearchResult,
     transitions,
 )
+from fsmsynth.stages.counters import TimedLogic
 from fsmsynth.stages.encode import Encoding
 from fsmsynth.stages.equations import Equation
 from fsmsynth.stages.netlist import Netlist
 from fsmsynth.stages.reduce.tabulation import StateMinimization
 from fsmsynth.stages.registered import delayed_machine
+from fsmsynth.stages.unroll import unroll
 from fsmsynth.writers.json_netlist import write_json_netlist
 from fsmsynth.writers.rtl_machine import RtlMachine, rtl_machine
 from fsmsynth.writers.rtl_verilog import assertion_lines as verilog_assertions
@@ -109,6 +112,10 @@ class Design:
     warnings: tuple[SpecWarning, ...] = ()
     """What the spec says that its designer may not have meant
     (:mod:`fsmsynth.checks.spec_warnings`), less the accepted ones."""
+    timed: TimedLogic | None = None
+    """For a machine with timers and counters (:mod:`fsmsynth.flows.timed`): how they were
+    built.  ``table`` is then the control machine (readings as inputs, actions as outputs)
+    and ``netlist``, ``cost`` and ``equations`` cover the whole design."""
 
     @property
     def multi_bit_steps(self) -> tuple[tuple[str, str, int], ...]:
@@ -167,7 +174,8 @@ class Design:
     def rtl(self) -> RtlMachine:
         """The machine as register-transfer-level HDL describes it
         (:mod:`fsmsynth.writers.rtl_machine`): the encoded states with their codes, whatever
-        the storage kind or target."""
+        the storage kind or target.  For timers and counters built as blocks, the control
+        machine (the structural HDL carries the blocks)."""
         base = (self.minimization.table if self.minimization
                 else constrain_outputs(self.table))
         codes = dict(self.encoding.codes)
@@ -190,13 +198,21 @@ class Design:
     def rtl_verilog(self) -> str:
         """Register-transfer-level Verilog (IEEE 1364-2005) of the machine: same module name
         and ports as :attr:`verilog` (:mod:`fsmsynth.writers.rtl_verilog`)."""
+        self._no_timer_rtl()
         return write_rtl_verilog(self.rtl, header=self.header())
 
     @cached_property
     def rtl_vhdl(self) -> str:
         """Register-transfer-level VHDL (IEEE 1076-2008) of the machine: same entity as
         :attr:`vhdl` (:mod:`fsmsynth.writers.rtl_vhdl`)."""
+        self._no_timer_rtl()
         return write_rtl_vhdl(self.rtl, header=self.header())
+
+    def _no_timer_rtl(self) -> None:
+        if self.timed is not None and self.timed.choice == "counters":
+            raise OptionError(f"{self.table.name}: RTL of timers and counters built as blocks "
+                              "is not written yet; use the structural HDL (verilog, vhdl), "
+                              "or build with timers unrolled")
 
     @cached_property
     def json(self) -> str:
@@ -217,6 +233,8 @@ class Design:
         or for registered Mealy outputs its delayed machine (outputs one clock later)."""
         if self.registered is not None and self.table.kind == "mealy":
             return delayed_machine(self.table, keep_dont_cares=True)
+        if self.timed is not None and self.timed.choice == "counters":
+            return unroll(self.timed.machine)  # the whole design's ports and behaviour
         return self.table
 
     @property

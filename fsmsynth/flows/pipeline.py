@@ -20,6 +20,7 @@ from fsmsynth.checks.trace import replay, violation_trace
 from fsmsynth.checks.verify import verify
 from fsmsynth.flows.design import Design
 from fsmsynth.flows.searched_codes import StorageChoice, per_bit, searched_codes
+from fsmsynth.flows.timed import synthesize_timed
 from fsmsynth.logic.cost import DEFAULT_WEIGHTS, CostWeights, cost_of, logic_shape
 from fsmsynth.logic.cover import minimize_logic
 from fsmsynth.logic.cube import Cube
@@ -30,6 +31,7 @@ from fsmsynth.map.targets import Target, target_named
 from fsmsynth.model.clocking import DEFAULT_CLOCKING, Clocking
 from fsmsynth.model.storage import STORAGES, Storage
 from fsmsynth.model.table import StateTable
+from fsmsynth.model.timers import TimedMachine
 from fsmsynth.stages.assign.scoring import (
     SEARCHES,
     SearchResult,
@@ -45,7 +47,7 @@ from fsmsynth.stages.registered import delayed_machine, registered_codes
 
 
 @exclusive
-def synthesize(table: StateTable, storage: StorageChoice = "d",
+def synthesize(table: StateTable | TimedMachine, storage: StorageChoice = "d",
                encoding: str | Mapping[str, int | str] = "binary", *,
                unused: str = "dont-care", weights: CostWeights = DEFAULT_WEIGHTS,
                logic: str = "heuristic", minimize: bool = True, check: bool = True,
@@ -55,13 +57,16 @@ def synthesize(table: StateTable, storage: StorageChoice = "d",
                map_for: str = "area",
                outputs: str | Mapping[str, str] = "combinational",
                unit_distance: bool = False, accept_warnings: Sequence[str] = (),
-               strict: bool = False, clocking: Clocking | None = None) -> Design:
+               strict: bool = False, clocking: Clocking | None = None,
+               timers: str = "counters") -> Design:
     """Synthesize ``table`` into equations and a netlist, and prove the result.
 
     Parameters
     ----------
     table:
-        The machine.
+        The machine: a :class:`~fsmsynth.model.table.StateTable`, or a
+        :class:`~fsmsynth.model.timers.TimedMachine` (a control machine with timers and
+        counters; :mod:`fsmsynth.flows.timed`).
     storage:
         Flip-flop kind for every state bit: ``"d"``, ``"t"``, ``"jk"``, ``"sr"`` or ``"de"``
         (D with clock enable); a sequence or a mapping giving the kind of each state bit
@@ -130,6 +135,11 @@ def synthesize(table: StateTable, storage: StorageChoice = "d",
         high or low, an optional clock enable); by default what the spec's ``[clocking]``
         says, else ``clk`` and an asynchronous active-high ``rst``.  The netlist, the HDL and
         the benches follow it.
+    timers:
+        For a timed machine: ``"counters"`` (default: each timer and counter a block of
+        the same storage kind beside the control machine), ``"unrolled"`` (one plain table
+        whose states carry the values) or ``"cheaper"`` (both, keeping the cheaper);
+        ``design.timed`` reports the blocks and the costs.
     accept_warnings, strict:
         ``design.warnings`` holds the spec's warnings
         (:func:`fsmsynth.checks.spec_warnings.spec_warnings`), less those the spec or
@@ -163,6 +173,14 @@ def synthesize(table: StateTable, storage: StorageChoice = "d",
     >>> print(synthesize(t, "t").equations["T0"])
     T0 = Q1'
     """
+    if isinstance(table, TimedMachine):
+        return synthesize_timed(
+            table, storage, encoding, synthesize=synthesize, timers=timers, check=check,
+            unused=unused, weights=weights, logic=logic, minimize=minimize, seed=seed,
+            budget=budget, width=width, clock_edge=clock_edge, jobs=jobs,
+            time_limit=time_limit, force=force, target=target, map_for=map_for,
+            outputs=outputs, unit_distance=unit_distance, accept_warnings=accept_warnings,
+            strict=strict, clocking=clocking)
     _check_arguments(table, weights, seed, unused, clock_edge)
     conventions = _clocking_for(table, clocking)
     warnings = spec_warnings(table, accept_warnings)

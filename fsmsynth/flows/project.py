@@ -31,6 +31,7 @@ from fsmsynth.flows.parallel import each_as_done
 from fsmsynth.flows.pipeline import synthesize
 from fsmsynth.formats import read_table
 from fsmsynth.model.table import StateTable
+from fsmsynth.model.timers import TimedMachine
 from fsmsynth.version import __version__
 from fsmsynth.writers.cocotb_bench import write_cocotb_bench
 from fsmsynth.writers.testbench import write_testbench
@@ -39,7 +40,7 @@ from fsmsynth.writers.vhdl import write_vhdl_testbench
 CACHE_NAME = ".fsmsynth-cache.json"
 
 
-def synthesize_with(table: StateTable, options: BuildOptions) -> Design:
+def synthesize_with(table: StateTable | TimedMachine, options: BuildOptions) -> Design:
     """:func:`fsmsynth.synthesize` with the options of ``options``."""
     storage = list(options.storage) if isinstance(options.storage, tuple) else options.storage
     return synthesize(table, storage, options.encoding, unused=options.unused,
@@ -50,7 +51,9 @@ def synthesize_with(table: StateTable, options: BuildOptions) -> Design:
                       target=options.target, map_for=options.map_for,
                       outputs=options.outputs, unit_distance=options.unit_distance,
                       accept_warnings=options.accept_warnings, strict=options.strict,
-                      clocking=options.clocking_for(table))
+                      timers=options.timers,
+                      clocking=options.clocking_for(
+                          table.control if isinstance(table, TimedMachine) else table))
 
 
 def design_files(design: Design, options: BuildOptions) -> dict[str, str]:
@@ -160,7 +163,7 @@ class ProjectBuild:
         return ["  ".join(c.ljust(w) for c, w in zip(r, widths)).rstrip() for r in rows]
 
 
-def build_one(table: StateTable, options: BuildOptions) -> BuiltDesign:
+def build_one(table: StateTable | TimedMachine, options: BuildOptions) -> BuiltDesign:
     """Synthesize, prove and write one design, in memory (what a worker runs)."""
     started = time.perf_counter()
     design = synthesize_with(table, options)
@@ -174,7 +177,8 @@ def build_one(table: StateTable, options: BuildOptions) -> BuiltDesign:
                        warnings=tuple(w.text() for w in design.warnings))
 
 
-def _built_or_error(table: StateTable, options: BuildOptions) -> BuiltDesign | Refused | str:
+def _built_or_error(table: StateTable | TimedMachine, options: BuildOptions
+                    ) -> BuiltDesign | Refused | str:
     """:func:`build_one`, with a failure returned as its message (so that one bad design
     does not stop the others, and the message survives any executor)."""
     try:
@@ -271,7 +275,7 @@ def build_project(project: Project, *, jobs: int | None = None,
         label: dict(entry) for label, entry in cache.items()
         if isinstance(entry, dict) and label in {s.label for s in project.specs}}
     outcomes: dict[str, DesignOutcome] = {}
-    todo: list[tuple[ProjectSpec, str, StateTable]] = []
+    todo: list[tuple[ProjectSpec, str, StateTable | TimedMachine]] = []
     total = len(project.specs)
 
     def finish(outcome: DesignOutcome) -> None:

@@ -17,7 +17,9 @@ from __future__ import annotations
 
 import tomllib
 
+from fsmsynth.base.errors import OptionError
 from fsmsynth.formats.spec_toml import parse_spec
+from fsmsynth.model.table import StateTable
 from fsmsynth.writers.spec_toml import toml_value, write_spec
 
 _TOP = ("name", "kind", "inputs", "outputs", "reset", "states", "default_outputs", "otherwise",
@@ -28,6 +30,9 @@ def rewrite_spec(text: str, path: str = "<string>", *, guards: bool = False) -> 
     """Spec text in today's form for the spec ``text`` (older forms included); raises
     :class:`~fsmsynth.base.errors.SpecFileError` as reading it would."""
     table = parse_spec(text, path, legacy=True)  # checks it, older forms included
+    if not isinstance(table, StateTable):
+        raise OptionError(f"{path}: a spec with timers and counters is in today's form "
+                          "already; rewrite has nothing to do")
     note = f"rewritten by fsmsynth rewrite from {path}"
     data = tomllib.loads(text)
     if "rows" in data:

@@ -17,20 +17,23 @@ from fsmsynth.base.frozen import FrozenMap
 from fsmsynth.base.names import did_you_mean, ports_of
 from fsmsynth.checks.spec_warnings import accept_problem
 from fsmsynth.formats.text_files import read_text
+from fsmsynth.language.timer_words import ACTIONS
 from fsmsynth.language.transitions import ExactCube
 from fsmsynth.model.clocking import Clocking
 from fsmsynth.model.table import StateTable
+from fsmsynth.model.timers import TimedMachine
 
 KEYS = ("name", "kind", "inputs", "outputs", "reset", "states", "state_outputs",
         "transition", "every_state", "default_outputs", "otherwise", "invariants", "final",
-        "accept_warnings", "clocking")
+        "accept_warnings", "clocking", "timers", "counters")
 CLOCKING_KEYS = ("clock", "reset", "reset_style", "reset_active", "enable")
 """Keys of ``[clocking]``: the clock, reset and enable port names, and how the reset acts
 (:class:`~fsmsynth.model.clocking.Clocking`)."""
-TRANSITION_KEYS = ("from", "when", "cube", "to", "set")
+TRANSITION_KEYS = ("from", "when", "cube", "to", "set", "start", "count", "clear")
 """Fields of one ``[[transition]]`` entry: present state, a guard (``when``) or an exact
-input cube (``cube``), next state (``"-"``: don't care), outputs set."""
-EVERY_STATE_KEYS = ("when", "to", "set")
+input cube (``cube``), next state (``"-"``: don't care), outputs set, and the timers it
+starts and counters it counts or clears (:mod:`fsmsynth.model.timers`)."""
+EVERY_STATE_KEYS = ("when", "to", "set", "start", "count", "clear")
 """Fields of one ``[[every_state]]`` entry, which every state tries before its own."""
 _POSITION = re.compile(r"\(at line (\d+), column \d+\)")
 _INVARIANT = re.compile(r"invariant (\d+) \(")
@@ -38,8 +41,9 @@ REWRITE = "fsmsynth rewrite"
 """The command that writes an older spec file in today's form."""
 
 
-def read_spec(path: str | Path, *, legacy: bool = False) -> StateTable:
-    """Read a state table from a ``.toml`` spec file.
+def read_spec(path: str | Path, *, legacy: bool = False) -> StateTable | TimedMachine:
+    """Read a state table from a ``.toml`` spec file; a spec with ``timers`` or ``counters``
+    gives a :class:`~fsmsynth.model.timers.TimedMachine`.
 
     ``legacy`` also reads the older forms (``rows = [...]`` of cube rows, ``from = "*"``),
     which ``fsmsynth rewrite`` turns into today's; otherwise they are refused with a message
@@ -53,7 +57,8 @@ def read_spec(path: str | Path, *, legacy: bool = False) -> StateTable:
     return parse_spec(read_text(path), str(path), legacy=legacy)
 
 
-def parse_spec(text: str, path: str = "<string>", *, legacy: bool = False) -> StateTable:
+def parse_spec(text: str, path: str = "<string>", *, legacy: bool = False
+               ) -> StateTable | TimedMachine:
     """Parse spec text; ``path`` is used in error messages (``legacy`` as for
     :func:`read_spec`)."""
     try:
@@ -159,7 +164,8 @@ def _entries(data: dict[str, Any], key: str, fields: tuple[str, ...], path: str,
     return entries
 
 
-def _guarded(data: dict[str, Any], path: str, lines: _Lines, legacy: bool) -> StateTable:
+def _guarded(data: dict[str, Any], path: str, lines: _Lines, legacy: bool
+             ) -> StateTable | TimedMachine:
     """``[[transition]]`` and ``[[every_state]]`` entries (the keys every spec has are
     checked by :func:`parse_spec`)."""
     moore = data.get("kind", "mealy") == "moore"
@@ -167,9 +173,21 @@ def _guarded(data: dict[str, Any], path: str, lines: _Lines, legacy: bool) -> St
     def outputs(entry: dict[str, Any]) -> dict[str, Any] | None:
         return None if moore and "set" not in entry else entry.get("set") or {}
 
+    timed = "timers" in data or "counters" in data
+
+    def actions(entry: dict[str, Any]) -> tuple[Any, ...]:
+        given = {a: entry[a] for a in ACTIONS if a in entry}
+        return (given,) if timed else ()
+
     transitions: list[tuple[Any, ...]] = []
     every: list[tuple[Any, ...]] = []
     for i, entry in enumerate(_entries(data, "transition", TRANSITION_KEYS, path, lines)):
+        if not timed and any(a in entry for a in ACTIONS):
+            action = next(a for a in ACTIONS if a in entry)
+            raise SpecFileError(f"transition {i + 1}: {action!r} acts on timers or counters; "
+                                "declare them first (timers = { name = cycles }, counters = "
+                                "{ name = limit })", path=path,
+                                line=lines.entry("transition", i), row=i)
         guard = ExactCube(entry["cube"]) if "cube" in entry else entry["when"]
         if entry["from"] == "*" and legacy:
             every.append((guard, entry["to"], outputs(entry)))
@@ -179,8 +197,9 @@ def _guarded(data: dict[str, Any], path: str, lines: _Lines, legacy: bool) -> St
                                 f"or run `{REWRITE} {path} -o NEW.toml`", path=path,
                                 line=lines.entry("transition", i), row=i)
         else:
-            transitions.append((entry["from"], guard, entry["to"], outputs(entry)))
-    every += [(entry["when"], entry["to"], outputs(entry))
+            transitions.append((entry["from"], guard, entry["to"], outputs(entry),
+                                *actions(entry)))
+    every += [(entry["when"], entry["to"], outputs(entry), *actions(entry))
               for entry in _entries(data, "every_state", EVERY_STATE_KEYS, path, lines)]
     defaults = data.get("default_outputs")
     if not moore and not legacy:  # an output a transition does not set is its default, or 0
@@ -190,25 +209,50 @@ def _guarded(data: dict[str, Any], path: str, lines: _Lines, legacy: bool) -> St
     if legacy and states is None:  # older files declared states by their first mention
         named = [t[0] for t in transitions] + [t[2] for t in transitions] + [e[1] for e in every]
         states = [n for n in dict.fromkeys(named) if n not in ("-", "*")]
+    args: dict[str, Any] = dict(
+        name=data["name"], kind=data.get("kind", "mealy"), reset=data["reset"],
+        inputs=data["inputs"], outputs=data["outputs"], transitions=transitions,
+        every_state=every, states=states, default_outputs=defaults,
+        otherwise=data.get("otherwise"),
+        state_outputs=data.get("state_outputs"), invariants=data.get("invariants"),
+        final=data.get("final", ()), accept_warnings=data.get("accept_warnings", ()))
+    for key in ("timers", "counters"):
+        if key in data and not isinstance(data[key], dict):
+            raise SpecFileError(f"{key!r} must be a table of name = "
+                                f"{'cycles' if key == 'timers' else 'limit'}", path=path,
+                                line=lines.key(key))
     try:
-        table = StateTable.from_transitions(
-            name=data["name"], kind=data.get("kind", "mealy"), reset=data["reset"],
-            inputs=data["inputs"], outputs=data["outputs"], transitions=transitions,
-            every_state=every, states=states, default_outputs=defaults,
-            otherwise=data.get("otherwise"),
-            state_outputs=data.get("state_outputs"), invariants=data.get("invariants"),
-            final=data.get("final", ()), accept_warnings=data.get("accept_warnings", ()))
+        if timed:
+            machine = TimedMachine.from_transitions(
+                timers=data.get("timers", {}), counters=data.get("counters", {}), **args)
+            table = machine.control
+        else:
+            table = StateTable.from_transitions(**args)
     except TableError as exc:
         # The compiler's errors name an entry; the table's own checks name compiled rows.
         line = (lines.entry(exc.entry, exc.row) if exc.entry and exc.row is not None
-                else lines.locate(exc, data))
+                else _block_line(exc, data, lines) or lines.locate(exc, data))
         raise SpecFileError(exc.message, path=path, line=line, state=exc.state, row=exc.row,
                             name=exc.name) from None
     if moore and not legacy:
         _moore_outputs_said(table, data, path, lines)
-    return replace(table, intent=replace(table.intent, source=path,
-                                         lines=FrozenMap(_introduced(table, data, lines))),
-                   clocking=_clocking(data, path, lines))
+    table = replace(table, intent=replace(table.intent, source=path,
+                                          lines=FrozenMap(_introduced(table, data, lines))),
+                    clocking=_clocking(data, path, lines))
+    if timed:
+        blocks = {**data.get("timers", {}), **data.get("counters", {})}
+        return replace(machine, control=table, lines=FrozenMap(
+            {name: lines.key("timers" if name in data.get("timers", {}) else "counters") or 0
+             for name in blocks}))
+    return table
+
+
+def _block_line(exc: TableError, data: dict[str, Any], lines: _Lines) -> int | None:
+    """The line of the timer or counter an error names (its declaration)."""
+    for key in ("timers", "counters"):
+        if exc.name is not None and exc.name in data.get(key, {}):
+            return lines.key(key)
+    return None
 
 
 def _clocking(data: dict[str, Any], path: str, lines: _Lines) -> Clocking | None:

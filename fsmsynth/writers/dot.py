@@ -10,7 +10,7 @@ from __future__ import annotations
 import json
 import shutil
 import subprocess
-from collections.abc import Sequence
+from collections.abc import Mapping, Sequence
 from pathlib import Path
 from typing import Any
 
@@ -29,7 +29,8 @@ def _q(text: str) -> str:
 
 
 def write_state_diagram(table: StateTable, *, warnings: Sequence[SpecWarning] = (),
-                        focus: Sequence[str] = ()) -> str:
+                        focus: Sequence[str] = (),
+                        notes: Mapping[str, Sequence[str]] | None = None) -> str:
     """State diagram in the designer's words: one node per state, one edge per (state,
     next state) pair, labelled with the conditions (guards over the named inputs and
     vectors, minimized per state) and the outputs each sets by name (``pump=1 level=3``;
@@ -43,7 +44,8 @@ def write_state_diagram(table: StateTable, *, warnings: Sequence[SpecWarning] = 
 
     A machine of many states reads best a part at a time: with ``focus`` only those states,
     the states they go to and the states that go to them are drawn, with the edges into and
-    out of the focus states (neighbours are drawn grey).
+    out of the focus states (neighbours are drawn grey).  ``notes`` adds lines under a
+    state's name (the timers a state waits on: ``purge: 300 cycles``).
     """
     for state in focus:
         if state not in table.states:
@@ -71,6 +73,8 @@ def write_state_diagram(table: StateTable, *, warnings: Sequence[SpecWarning] = 
         if table.kind == "moore":
             said = _said(table.output_cube_of(s), table.outputs)
             label += f"\n{said}" if said else ""
+        for note in (notes or {}).get(s, ()):
+            label += f"\n{note}"
         attrs = [f"label={_q(label)}"]
         if s == table.reset:
             attrs.append("peripheries=2")
