@@ -251,12 +251,12 @@ def _broken(indices: Sequence[int], *, conditions: Sequence[Any], here: Any, sig
         condition &= conditions[i]
     allowed = _allowed(condition, here.out_on, here.out_off, signals.outputs)
     if moore:
-        if not allowed.consensus(signals.inputs).smoothing(signals.outputs).is_zero():
+        if not bdd.exists(bdd.forall(allowed, signals.inputs), signals.outputs).is_zero():
             return bdd.ZERO
         fixed = {var: 1 if high.is_one() else 0
                  for var, high in zip(signals.outputs, here.out_on)}
         return ~allowed.restrict(fixed)
-    return ~allowed.smoothing(signals.outputs)
+    return ~bdd.exists(allowed, signals.outputs)
 
 
 def _conflict(indices: Sequence[int], broken: Any) -> tuple[int, ...]:
@@ -347,7 +347,7 @@ def constrain_outputs(table: StateTable) -> StateTable:
         for condition in conditions[state]:
             allowed &= _allowed(condition, here.out_on, here.out_off, signals.outputs)
         if table.kind == "moore":
-            allowed = allowed.consensus(signals.inputs)
+            allowed = bdd.forall(allowed, signals.inputs)
         force = _force(allowed, here.out_on, here.out_off, signals.outputs)
         if table.kind == "moore":
             cube = list(table.output_cube_of(state))
@@ -370,8 +370,8 @@ def _force(allowed: Any, on: Sequence[Any], off: Sequence[Any], outputs: Sequenc
     for o, var in enumerate(outputs):
         rest = list(outputs[o + 1:])
         low, high = allowed.restrict({var: 0}), allowed.restrict({var: 1})
-        can_low, can_high = low.smoothing(rest), high.smoothing(rest)
-        either = (low & high).smoothing(rest)
+        can_low, can_high = bdd.exists(low, rest), bdd.exists(high, rest)
+        either = bdd.exists(low & high, rest)
         free = ~(on[o] | off[o])
         keep = free & either
         to_low = free & ~either & can_low

@@ -162,22 +162,38 @@ def _exact(netlist: Netlist, machine: TimedMachine, local: str) -> Verification:
     return replace(result, note="by the unrolled table")
 
 
+INVARIANT_UNROLL_LIMIT = 1500
+"""Invariants of a timed machine are proven exactly on its unrolled table up to this many
+states (an explicit walk); beyond, on the control machine with free readings."""
+
+
 def check_timed_invariants(machine: TimedMachine, netlist: Netlist | None = None
                            ) -> InvariantCheck:
+    """See :func:`_check_timed_invariants`; a broken invariant is named as written."""
+    kept = _check_timed_invariants(machine, netlist)
+    if kept.violation is None or len(machine.written) != len(kept.invariants):
+        return kept
+    text = machine.written[kept.invariants.index(kept.violation.invariant)]
+    return replace(kept, invariants=machine.written,
+                   violation=replace(kept.violation, invariant=text))
+
+
+def _check_timed_invariants(machine: TimedMachine, netlist: Netlist | None = None
+                            ) -> InvariantCheck:
     """Prove the control machine's invariants (which may read ``purge.done``, the actions
     and ``tries >= 2``) on the timed machine, or on ``netlist`` that realizes it.
 
     Exact on the unrolled table (readings and actions kept as outputs) up to
-    :data:`~fsmsynth.stages.unroll.UNROLL_LIMIT` states; beyond, on the control machine with
-    the readings taken as free inputs, which is sound (an invariant proven so holds) but may
-    report a violation that needs readings the timers never give."""
+    :data:`INVARIANT_UNROLL_LIMIT` states; beyond, on the control machine with the readings
+    taken as free inputs, which is sound (an invariant proven so holds) but may report a
+    violation that needs readings the timers never give (the summary says so)."""
     control = machine.control
     if not control.invariants:
         return InvariantCheck((), 0, "table" if netlist is None else "netlist")
     readings = [r.signal for r in machine.readings]
     actions = [a for a, _b, _x in machine.action_signals()]
     try:
-        table = unroll(machine, signals=True)
+        table = unroll(machine, signals=True, limit=INVARIANT_UNROLL_LIMIT)
     except TableError:
         if netlist is None:
             return check_invariants(control)
@@ -185,7 +201,10 @@ def check_timed_invariants(machine: TimedMachine, netlist: Netlist | None = None
         part = cut(netlist, inputs=[*machine.inputs, *readings], bits=range(k),
                    outputs=[*machine.outputs, *actions])
         return check_invariants(control, part)
-    if netlist is None:
+    if netlist is None or len(table.outputs) > len(machine.outputs) + len(readings) + len(
+            actions):
+        # Invariants that test states are proven on the unrolled table (the netlist has no
+        # net that says "in state purge"; it is proven to be that table's machine).
         return check_invariants(table)
     view = replace(netlist, outputs=netlist.outputs + tuple(
         (s, s) for s in [*readings, *actions]))

@@ -30,9 +30,13 @@ from fsmsynth.stages.unroll import unroll
 
 TIMER_CHOICES = TIMERS
 """How timers and counters are built: as counter blocks, unrolled into states, or both ways
-keeping the cheaper (``"cheaper"`` unrolls only up to
-:data:`~fsmsynth.stages.unroll.UNROLL_LIMIT` states, and only without invariants)."""
+keeping the cheaper (``"cheaper"`` unrolls only up to :data:`CHEAPER_UNROLL_LIMIT`
+states, and only without invariants)."""
 
+
+CHEAPER_UNROLL_LIMIT = 600
+"""``timers="cheaper"`` builds the unrolled machine too only up to this many states (beyond,
+a counter is always the cheaper, and minimizing the logic of thousands of states is slow)."""
 
 Synthesizer = Callable[..., Design]
 
@@ -57,7 +61,8 @@ def synthesize_timed(machine: TimedMachine, storage: Any, encoding: Any, *,
                                            synthesize)
     if timers == "unrolled" or (timers == "cheaper" and not machine.control.invariants):
         try:
-            table = unroll(machine)
+            table = unroll(machine, **({"limit": CHEAPER_UNROLL_LIMIT}
+                                       if timers == "cheaper" else {}))
         except TableError:
             if timers == "unrolled":
                 raise

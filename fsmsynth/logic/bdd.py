@@ -59,3 +59,22 @@ def point_of(function: Any, var: Sequence[Any]) -> int:
     assert found is not None, "empty set has no point"
     index = {v: i for i, v in enumerate(var)}
     return sum(bit << index[v] for v, bit in found.items())
+
+
+def exists(function: Any, over: Sequence[Any]) -> Any:
+    """``function`` with the variables ``over`` quantified existentially (smoothing), one
+    variable at a time: linear in their number (pyeda's ``smoothing`` visits every point of
+    the variables together, ``2**len(over)`` cofactors)."""
+    for v in over:
+        if v in function.support:
+            function = function.restrict({v: 0}) | function.restrict({v: 1})
+    return function
+
+
+def forall(function: Any, over: Sequence[Any]) -> Any:
+    """``function`` with the variables ``over`` quantified universally (consensus), one
+    variable at a time."""
+    for v in over:
+        if v in function.support:
+            function = function.restrict({v: 0}) & function.restrict({v: 1})
+    return function

@@ -127,6 +127,8 @@ class TimedMachine:
         The spec's own input and output bits (the ports of the whole design).
     lines:
         Spec line of each timer and counter, where it came from a file.
+    written:
+        The invariants as the spec writes them.
     """
 
     control: StateTable
@@ -135,10 +137,18 @@ class TimedMachine:
     inputs: tuple[str, ...]
     outputs: tuple[str, ...]
     lines: Mapping[str, int] = field(default_factory=lambda: FrozenMap({}), compare=False)
+    written: tuple[str, ...] = ()
+    """The invariants as written (``purge.done``), one per invariant of the control
+    machine (``purge_done``), for messages."""
 
     @property
     def name(self) -> str:
         return self.control.name
+
+    @property
+    def states(self) -> tuple[str, ...]:
+        """The control machine's states."""
+        return self.control.states
 
     @property
     def widths(self) -> tuple[int, ...]:
@@ -235,7 +245,8 @@ class TimedMachine:
         n_user_in = len(control.inputs) - len(readings)
         n_user_out = len(control.outputs) - len(actions)
         return cls(control=control, blocks=tuple(blocks), readings=readings,
-                   inputs=control.inputs[:n_user_in], outputs=control.outputs[:n_user_out])
+                   inputs=control.inputs[:n_user_in], outputs=control.outputs[:n_user_out],
+                   written=tuple(invariants or ()))
 
 
 def _names(ports: Sequence[str] | Mapping[str, int]) -> list[str]:

@@ -17,7 +17,7 @@ from fsmsynth.base.errors import TableError
 from fsmsynth.model.table import StateTable
 from fsmsynth.model.timers import TimedMachine
 
-UNROLL_LIMIT = 4000
+UNROLL_LIMIT = 20000
 """Above this many states an unrolled table is refused (the composed design's proof does not
 need one)."""
 
@@ -29,8 +29,9 @@ def unroll(machine: TimedMachine, *, limit: int = UNROLL_LIMIT, signals: bool = 
     """The plain table of ``machine`` (see the module docstring).
 
     With ``signals`` the readings and actions stay as outputs of the table (readings first),
-    and the invariants are kept, their state tests rewritten over the unrolled states; that
-    is the table invariants of a timed machine are proven on.
+    then one output per state the invariants test (``in_state_purge``, 1 in every unrolled
+    state of ``purge``), and the invariants are kept with their state tests rewritten as
+    tests of those outputs; that is the table invariants of a timed machine are proven on.
 
     Raises
     ------
@@ -83,10 +84,18 @@ def unroll(machine: TimedMachine, *, limit: int = UNROLL_LIMIT, signals: bool = 
                 seen.add(after)
                 queue.append(after)
             rows.append((here, cube[:n_in], name_of(after), word))
-    outputs = machine.outputs + ((*(r.signal for r in machine.readings),
-                                  *control.outputs[n_out:]) if signals else ())
-    invariants = ([_over_unrolled(text, of_state) for text in control.invariants]
-                  if signals else None)
+    outputs = machine.outputs
+    invariants = None
+    if signals:
+        outputs += (*(r.signal for r in machine.readings), *control.outputs[n_out:])
+        # Each state an invariant tests becomes an output that is 1 in its unrolled states.
+        tested = _tested_states(control.invariants, control.states)
+        flags = {s: _free(f"in_state_{s}", {*outputs, *control.inputs}) for s in tested}
+        outputs += tuple(flags.values())
+        member = {u: s for s, us in of_state.items() for u in us}
+        rows = [(u, c, n, w + "".join("1" if member[u] == s else "0" for s in tested))
+                for u, c, n, w in rows]
+        invariants = [_over_flags(text, flags) for text in control.invariants]
     return StateTable.from_rows(name=machine.name, kind="mealy", inputs=machine.inputs,
                                 outputs=outputs, rows=rows, reset=control.reset,
                                 states=[names[n] for n in names if n in seen],
@@ -97,11 +106,25 @@ _STATE_TEST = re.compile(r"\bstate\s*(==|!=)\s*([A-Za-z_][A-Za-z0-9_]*)")
 _IN_STATE = re.compile(r"\bin\s*\(\s*state\s*,([^)]*)\)")
 
 
-def _over_unrolled(text: str, of_state: dict[str, list[str]]) -> str:
-    """An invariant's state tests over the unrolled states of each named state."""
+def _tested_states(invariants: tuple[str, ...], states: tuple[str, ...]) -> list[str]:
+    named = {m.group(2) for text in invariants for m in _STATE_TEST.finditer(text)}
+    named |= {n.strip() for text in invariants for m in _IN_STATE.finditer(text)
+              for n in m.group(1).split(",")}
+    return [s for s in states if s in named]
+
+
+def _free(name: str, taken: set[str]) -> str:
+    while name in taken:
+        name += "_"
+    return name
+
+
+def _over_flags(text: str, flags: dict[str, str]) -> str:
+    """An invariant's state tests as tests of the state flags (an unknown state is left for
+    the guard compiler to name)."""
     def members(names: list[str]) -> str:
-        found = [u for n in names for u in of_state.get(n.strip(), [])]
-        return f"in(state, {', '.join(found)})" if found else "0"
+        found = [flags[n.strip()] for n in names if n.strip() in flags]
+        return f"({' | '.join(found)})" if found else "0"
 
     def test(match: re.Match[str]) -> str:
         held = members([match.group(2)])
