@@ -32,6 +32,7 @@ if TYPE_CHECKING:  # what type checkers and readers see; at run time names load 
     from fsmsynth.checks.simulate import simulate
     from fsmsynth.checks.spec_warnings import WARNINGS, SpecWarning, spec_warnings
     from fsmsynth.checks.table_check import TableReport, check_table
+    from fsmsynth.checks.timed_proof import check_timed_invariants, verify_timed
     from fsmsynth.checks.timing import Delays, GateDelay, TimingReport, timing
     from fsmsynth.checks.trace import Trace, replay, write_trace_vcd
     from fsmsynth.checks.verify import verify
@@ -52,11 +53,14 @@ if TYPE_CHECKING:  # what type checkers and readers see; at run time names load 
     from fsmsynth.model.intent import Intent
     from fsmsynth.model.storage import STORAGES, Storage
     from fsmsynth.model.table import StateTable
+    from fsmsynth.model.timers import Counter, TimedMachine, Timer
+    from fsmsynth.stages.counters import TimedLogic
     from fsmsynth.stages.encode import Encoding, encode
     from fsmsynth.stages.equations import Equation
     from fsmsynth.stages.netlist import FlipFlop, Gate, Netlist
     from fsmsynth.stages.reduce import minimize_states
     from fsmsynth.stages.reduce.tabulation import StateMinimization
+    from fsmsynth.stages.unroll import unroll
     from fsmsynth.version import __version__
 
 _WHERE: dict[str, tuple[str, str]] = {
@@ -119,6 +123,13 @@ _WHERE: dict[str, tuple[str, str]] = {
     'STORAGES': ('fsmsynth.model.storage', 'STORAGES'),
     'Storage': ('fsmsynth.model.storage', 'Storage'),
     'StateTable': ('fsmsynth.model.table', 'StateTable'),
+    'TimedMachine': ('fsmsynth.model.timers', 'TimedMachine'),
+    'Timer': ('fsmsynth.model.timers', 'Timer'),
+    'Counter': ('fsmsynth.model.timers', 'Counter'),
+    'TimedLogic': ('fsmsynth.stages.counters', 'TimedLogic'),
+    'unroll': ('fsmsynth.stages.unroll', 'unroll'),
+    'verify_timed': ('fsmsynth.checks.timed_proof', 'verify_timed'),
+    'check_timed_invariants': ('fsmsynth.checks.timed_proof', 'check_timed_invariants'),
     'Encoding': ('fsmsynth.stages.encode', 'Encoding'),
     'encode': ('fsmsynth.stages.encode', 'encode'),
     'Equation': ('fsmsynth.stages.equations', 'Equation'),
@@ -152,10 +163,11 @@ __all__ = [
     # model
     "StateTable", "ExactCube", "Intent", "Clocking", "Storage", "STORAGES", "Encoding", "Equation",
     "Netlist", "Gate", "FlipFlop",
-    "Cost", "CostWeights",
+    "Cost", "CostWeights", "TimedMachine", "Timer", "Counter", "TimedLogic",
     # stages
     "minimize_states", "StateMinimization", "encode", "minimize_sop", "SopCover",
     "synthesize", "Design", "verify", "simulate", "Verification", "Counterexample",
+    "unroll", "verify_timed", "check_timed_invariants",
     "compare", "Comparison", "ComparisonRow", "convert_storage", "StorageConversion",
     "timing", "TimingReport", "Delays", "GateDelay", "Trace", "replay", "write_trace_vcd",
     "check_invariants", "constrain_outputs", "InvariantCheck", "InvariantViolation",

@@ -26,7 +26,7 @@ from fsmsynth.model.storage import STORAGES
 from fsmsynth.model.timers import TimedMachine
 from fsmsynth.stages.compose import compose
 from fsmsynth.stages.counters import TimedLogic, block_logic, total_cost
-from fsmsynth.stages.unroll import unroll
+from fsmsynth.stages.unroll import UNROLL_LIMIT, unroll
 
 TIMER_CHOICES = TIMERS
 """How timers and counters are built: as counter blocks, unrolled into states, or both ways
@@ -61,8 +61,8 @@ def synthesize_timed(machine: TimedMachine, storage: Any, encoding: Any, *,
                                            synthesize)
     if timers == "unrolled" or (timers == "cheaper" and not machine.control.invariants):
         try:
-            table = unroll(machine, **({"limit": CHEAPER_UNROLL_LIMIT}
-                                       if timers == "cheaper" else {}))
+            table = unroll(machine, limit=CHEAPER_UNROLL_LIMIT if timers == "cheaper"
+                           else UNROLL_LIMIT)
         except TableError:
             if timers == "unrolled":
                 raise
