@@ -133,12 +133,7 @@ def test_every_storage_kind_and_target_gives_the_same_rtl(spec: str) -> None:
     assert len(texts) == 1
 
 
-# RTL of timers and counters built as blocks is not written yet (test_timers checks that it
-# is refused); the structural netlist carries them.
-PLAIN = [p.name for p in sorted(EXAMPLES.glob("*.toml")) if "timers" not in p.read_text()]
-
-
-@pytest.mark.parametrize("spec", PLAIN)
+@pytest.mark.parametrize("spec", sorted(p.name for p in EXAMPLES.glob("*.toml")))
 def test_verilator_lints_the_rtl_clean(spec: str, tmp_path: Path) -> None:
     verilator = need("verilator")
     design = synthesize(read_table(EXAMPLES / spec), "jk", unused="safe")

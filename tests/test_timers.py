@@ -18,7 +18,7 @@ from test_rtl import run_icarus
 from test_vhdl import run_ghdl
 
 from fsmsynth import synthesize
-from fsmsynth.base.errors import InvariantError, OptionError, SpecFileError
+from fsmsynth.base.errors import InvariantError, SpecFileError
 from fsmsynth.checks.simulate import simulate
 from fsmsynth.checks.timed_proof import verify_timed
 from fsmsynth.checks.verify import verify
@@ -319,7 +319,19 @@ def test_same_spec_same_bytes() -> None:
     assert list(itertools.islice(one.equations, 5)) == list(itertools.islice(two.equations, 5))
 
 
-def test_rtl_of_timer_blocks_is_refused_clearly() -> None:
-    design = synthesize(parse_spec(short_burner()), "d")
-    with pytest.raises(OptionError, match="RTL of timers and counters"):
-        _ = design.rtl_verilog
+@pytest.mark.parametrize("kind", ["t", "sr"])
+def test_the_rtl_with_its_counters_passes_the_benches_and_a_mutant_fails(
+        kind: str, tmp_path: Path) -> None:
+    """The RTL (value registers beside the machine) against the bench of the unrolled
+    table, in Icarus and GHDL; a timer that loads one cycle short fails it."""
+    design = synthesize(parse_spec(short_burner()), kind)
+    bench = write_testbench(design.reference, clocking=design.clocking)
+    assert "reg [1:0] purge_value;" in design.rtl_verilog
+    run = run_icarus(design.rtl_verilog, bench, tmp_path)
+    assert "PASS" in run.stdout and run.returncode == 0, run.stdout[-400:]
+    short = design.rtl_verilog.replace("purge_value <= 2'd3;", "purge_value <= 2'd2;")
+    assert short != design.rtl_verilog
+    assert "PASS" not in run_icarus(short, bench, tmp_path).stdout
+    vhdl = run_ghdl(design.rtl_vhdl, write_vhdl_testbench(design.reference),
+                    design.table.name, tmp_path)
+    assert vhdl.returncode == 0, vhdl.stdout[-400:] + vhdl.stderr[-400:]

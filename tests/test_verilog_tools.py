@@ -43,7 +43,9 @@ def need_module(name: str, extra: str, what: str) -> Any:
 
 
 def machines() -> list[StateTable]:
-    tables = [read_table(p) for p in sorted(EXAMPLES.glob("*.toml"))]
+    # Timed examples have benches of their unrolled table: test_timers runs them, shortened.
+    tables = [t for t in map(read_table, sorted(EXAMPLES.glob("*.toml")))
+              if isinstance(t, StateTable)]
     tables.append(read_table(EXAMPLES / "rail_crossing.csv"))
     tables.append(StateTable.from_rows(  # zero inputs, one state bit unused by any logic
         name="blinker", inputs=[], outputs=["lamp"], reset="dark",

@@ -7,7 +7,6 @@ from collections.abc import Callable, Mapping
 from dataclasses import dataclass
 from functools import cached_property
 
-from fsmsynth.base.errors import OptionError
 from fsmsynth.checks.hazards import GlitchReport, glitch_report
 from fsmsynth.checks.invariants import InvariantCheck, constrain_outputs
 from fsmsynth.checks.proof import Verification
@@ -174,8 +173,8 @@ class Design:
     def rtl(self) -> RtlMachine:
         """The machine as register-transfer-level HDL describes it
         (:mod:`fsmsynth.writers.rtl_machine`): the encoded states with their codes, whatever
-        the storage kind or target.  For timers and counters built as blocks, the control
-        machine (the structural HDL carries the blocks)."""
+        the storage kind or target; timers and counters built as blocks are registers beside
+        it (:mod:`fsmsynth.writers.rtl_blocks`)."""
         base = (self.minimization.table if self.minimization
                 else constrain_outputs(self.table))
         codes = dict(self.encoding.codes)
@@ -192,27 +191,21 @@ class Design:
                            else "rising", spec=self.table,
                            members={r: tuple(sorted(m)) for r, m in
                                     self.minimization.classes.items()}
-                           if self.minimization else None, clocking=self.clocking)
+                           if self.minimization else None, clocking=self.clocking,
+                           timed=self.timed.machine if self.timed is not None
+                           and self.timed.choice == "counters" else None)
 
     @cached_property
     def rtl_verilog(self) -> str:
         """Register-transfer-level Verilog (IEEE 1364-2005) of the machine: same module name
         and ports as :attr:`verilog` (:mod:`fsmsynth.writers.rtl_verilog`)."""
-        self._no_timer_rtl()
         return write_rtl_verilog(self.rtl, header=self.header())
 
     @cached_property
     def rtl_vhdl(self) -> str:
         """Register-transfer-level VHDL (IEEE 1076-2008) of the machine: same entity as
         :attr:`vhdl` (:mod:`fsmsynth.writers.rtl_vhdl`)."""
-        self._no_timer_rtl()
         return write_rtl_vhdl(self.rtl, header=self.header())
-
-    def _no_timer_rtl(self) -> None:
-        if self.timed is not None and self.timed.choice == "counters":
-            raise OptionError(f"{self.table.name}: RTL of timers and counters built as blocks "
-                              "is not written yet; use the structural HDL (verilog, vhdl), "
-                              "or build with timers unrolled")
 
     @cached_property
     def json(self) -> str:

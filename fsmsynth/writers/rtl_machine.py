@@ -26,6 +26,8 @@ from fsmsynth.logic.cube import Cube
 from fsmsynth.model.clocking import DEFAULT_CLOCKING, Clocking
 from fsmsynth.model.regions import pieces, state_regions
 from fsmsynth.model.table import StateTable
+from fsmsynth.model.timers import TimedMachine
+from fsmsynth.writers.rtl_blocks import RtlBlock, rtl_blocks
 
 
 @dataclass(frozen=True, slots=True)
@@ -80,6 +82,19 @@ class RtlMachine:
     source: str | None
     invariants: tuple[RtlInvariant, ...]
     clocking: Clocking = DEFAULT_CLOCKING
+    blocks: tuple[RtlBlock, ...] = ()
+    """Timers and counters beside the machine (:mod:`fsmsynth.writers.rtl_blocks`)."""
+    internal: tuple[str, ...] = ()
+    """Inputs and outputs of the machine that are not ports: the timers' and counters'
+    readings (driven by the blocks) and actions (read by them)."""
+
+    @property
+    def ports_in(self) -> tuple[str, ...]:
+        return tuple(i for i in self.inputs if i not in self.internal)
+
+    @property
+    def ports_out(self) -> tuple[str, ...]:
+        return tuple(o for o in self.outputs if o not in self.internal)
 
     @property
     def unused_codes(self) -> bool:
@@ -180,13 +195,15 @@ def rtl_machine(table: StateTable, codes: Mapping[str, int], width: int, *, meth
                 unused: str, registered: bool, edge: str = "rising",
                 spec: StateTable | None = None,
                 members: Mapping[str, Sequence[str]] | None = None,
-                clocking: Clocking = DEFAULT_CLOCKING) -> RtlMachine:
+                clocking: Clocking = DEFAULT_CLOCKING,
+                timed: TimedMachine | None = None) -> RtlMachine:
     """The RTL description of ``table`` (the machine that was encoded) with state ``codes``
     of ``width`` bits; ``registered`` puts every output in a register of its own (as
     :mod:`fsmsynth.stages.registered` builds them).  The invariants are those of ``spec``
     (the table as given; by default ``table``), whose states ``members`` maps each of
     ``table``'s to (by default itself).  ``clocking`` names the clock, reset and enable
-    ports and says how the registers reset."""
+    ports and says how the registers reset.  ``timed``: the timers and counters whose
+    readings and actions ``table`` (its control machine) has among its inputs and outputs."""
     var = bdd.variables(len(table.inputs))
     regions = state_regions(table, var)
     states = []
@@ -202,4 +219,6 @@ def rtl_machine(table: StateTable, codes: Mapping[str, int], width: int, *, meth
                       reset=table.reset, unused_safe=unused == "safe", registered=registered,
                       edge=edge, method=method, source=table.intent.source,
                       invariants=_invariants(spec or table, table.states, members or {}),
-                      clocking=clocking)
+                      clocking=clocking, blocks=rtl_blocks(timed) if timed else (),
+                      internal=(*(r.signal for r in timed.readings),
+                                *(s for s, _b, _a in timed.action_signals())) if timed else ())

@@ -17,6 +17,7 @@ from collections.abc import Callable
 from fsmsynth.base.names import port_spans, ports_of
 from fsmsynth.logic.cube import Cube
 from fsmsynth.version import __version__
+from fsmsynth.writers.rtl_blocks import verilog_lines as blocks_verilog
 from fsmsynth.writers.rtl_machine import RtlInvariant, RtlMachine, RtlState
 from fsmsynth.writers.verilog import register_block
 
@@ -115,10 +116,10 @@ def _read_inputs(m: RtlMachine) -> set[str]:
 
 def _ports(m: RtlMachine) -> list[str]:
     decls = [f"input  wire {p}" for p in m.clocking.ports]
-    decls += [f"input  wire {_range(w)}{p}" for p, w in ports_of(m.inputs)]
-    decls += [f"output reg  {_range(w)}{p}" for p, w in ports_of(m.outputs)]
+    decls += [f"input  wire {_range(w)}{p}" for p, w in ports_of(m.ports_in)]
+    decls += [f"output reg  {_range(w)}{p}" for p, w in ports_of(m.ports_out)]
     read = _read_inputs(m)
-    unread = {f"input  wire {_range(w)}{p}" for p, w in ports_of(m.inputs)
+    unread = {f"input  wire {_range(w)}{p}" for p, w in ports_of(m.ports_in)
               if p not in read and not m.invariants}
     lines = []
     for i, decl in enumerate(decls):
@@ -228,7 +229,13 @@ def write_rtl_verilog(m: RtlMachine, *, header: str = "") -> str:
               + codes + ";", f"    reg [{m.width - 1}:0] state, state_next;"]
     if m.registered:
         lines += [f"    reg {_range(w)}{p}_d;" for p, w in ports_of(m.outputs)]
-    lines += [""] + [f"    {x}" for x in _registers(m)] + [""]
+    if m.blocks:
+        outs = set(m.outputs)
+        lines += ["    // The timers' and counters' readings and the machine's actions on them."]
+        lines += [f"    {'reg ' if s in outs else 'wire'} {s};" for s in m.internal]
+    lines += [""] + [f"    {x}" for x in _registers(m)]
+    lines += [f"    {x}" if x else "" for x in blocks_verilog(m.blocks, m.edge, m.clocking)]
+    lines += [""]
     lines += ["    // Next state and outputs: the defaults, then what each state says.",
               "    always @* begin"]
     lines += [f"        {x}" for x in _defaults(m, suffix)]
