@@ -335,3 +335,18 @@ def test_the_rtl_with_its_counters_passes_the_benches_and_a_mutant_fails(
     vhdl = run_ghdl(design.rtl_vhdl, write_vhdl_testbench(design.reference),
                     design.table.name, tmp_path)
     assert vhdl.returncode == 0, vhdl.stdout[-400:] + vhdl.stderr[-400:]
+
+
+def test_the_bench_of_long_timers_walks_the_waits_and_catches_one_cycle(tmp_path: Path) -> None:
+    """A 300-cycle wait: the bench tests one unrolled state per control state and readings
+    (the proof covers the other counter values), walks the waits in loops, stays small,
+    passes, and fails a design whose purge is one cycle short."""
+    design = synthesize(parse_spec(BURNER), "jk")
+    bench = write_testbench(design.reference, clocking=design.clocking,
+                            tested=design.bench_states)
+    assert len(bench) < 500_000 and "repeat (299) begin" in bench
+    run = run_icarus(design.verilog, bench, tmp_path)
+    assert "PASS" in run.stdout and run.returncode == 0, run.stdout[-400:]
+    short = design.rtl_verilog.replace("purge_value <= 9'd299;", "purge_value <= 9'd298;")
+    assert short != design.rtl_verilog
+    assert "PASS" not in run_icarus(short, bench, tmp_path).stdout

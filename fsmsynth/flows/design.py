@@ -31,7 +31,7 @@ from fsmsynth.stages.equations import Equation
 from fsmsynth.stages.netlist import Netlist
 from fsmsynth.stages.reduce.tabulation import StateMinimization
 from fsmsynth.stages.registered import delayed_machine
-from fsmsynth.stages.unroll import unroll
+from fsmsynth.stages.unroll import representatives, unroll
 from fsmsynth.writers.json_netlist import write_json_netlist
 from fsmsynth.writers.rtl_machine import RtlMachine, rtl_machine
 from fsmsynth.writers.rtl_verilog import assertion_lines as verilog_assertions
@@ -229,6 +229,16 @@ class Design:
         if self.timed is not None and self.timed.choice == "counters":
             return unroll(self.timed.machine)  # the whole design's ports and behaviour
         return self.table
+
+    @cached_property
+    def bench_states(self) -> tuple[str, ...] | None:
+        """The states of :attr:`reference` a bench tests: all (``None``), or for timers and
+        counters built as blocks one state of the unrolled table per control state and
+        readings (:func:`fsmsynth.stages.unroll.representatives`); the proof covers the other
+        counter values."""
+        if self.timed is not None and self.timed.choice == "counters":
+            return representatives(self.timed.machine)
+        return None
 
     @property
     def state_width(self) -> int:

@@ -73,16 +73,18 @@ def design_files(design: Design, options: BuildOptions) -> dict[str, str]:
     if options.testbench and {"verilog", "verilog-rtl"} & set(options.hdl):
         files[f"{name}_tb.v"] = write_testbench(
             design.reference, clocking=design.clocking,
-            vcd=f"{name}.vcd" if options.bench_vcd else None)
+            vcd=f"{name}.vcd" if options.bench_vcd else None, tested=design.bench_states)
     if options.testbench and {"vhdl", "vhdl-rtl"} & set(options.hdl):
         files[f"{name}_tb.vhd"] = write_vhdl_testbench(design.reference,
-                                                       clocking=design.clocking)
+                                                       clocking=design.clocking,
+                                                       tested=design.bench_states)
     if options.report:
         from fsmsynth.flows.report import report_page  # Graphviz and the page: on request
         files[f"{name}.html"] = report_page(design)
     if options.cocotb:
         files[f"{name}_cocotb.py"] = write_cocotb_bench(design.reference,
-                                                        clocking=design.clocking)
+                                                        clocking=design.clocking,
+                                                        tested=design.bench_states)
     return files
 
 

@@ -38,6 +38,19 @@ def unroll(machine: TimedMachine, *, limit: int = UNROLL_LIMIT, signals: bool = 
     TableError
         When more than ``limit`` states are reachable.
     """
+    return _unrolled(machine, limit, signals)[0]
+
+
+def representatives(machine: TimedMachine, *, limit: int = UNROLL_LIMIT) -> tuple[str, ...]:
+    """The unrolled states a bench tests (the first reached, so the nearest to reset, of
+    each pair of a control state and the readings there); the others differ from one of
+    these only in counter values, which the proof covers
+    (:mod:`fsmsynth.checks.timed_proof`)."""
+    return _unrolled(machine, limit, False)[1]
+
+
+def _unrolled(machine: TimedMachine, limit: int, signals: bool
+              ) -> tuple[StateTable, tuple[str, ...]]:
     control = machine.control
     n_in, n_out = len(machine.inputs), len(machine.outputs)
     start: Node = (control.reset, tuple(0 for _ in machine.blocks))
@@ -61,12 +74,14 @@ def unroll(machine: TimedMachine, *, limit: int = UNROLL_LIMIT, signals: bool = 
     seen = {start}
     queue = deque([start])
     of_state: dict[str, list[str]] = {}
+    first: dict[tuple[str, str], str] = {}
     while queue:
         node = queue.popleft()
         state, values = node
         here = name_of(node)
         of_state.setdefault(state, []).append(here)
         read = machine.read_word(values)
+        first.setdefault((state, read), here)
         for _s, cube, nxt, out in control.rows_of(state):
             if any(c not in ("-", r) for c, r in zip(cube[n_in:], read)):
                 continue
@@ -96,10 +111,11 @@ def unroll(machine: TimedMachine, *, limit: int = UNROLL_LIMIT, signals: bool = 
         rows = [(u, c, n, w + "".join("1" if member[u] == s else "0" for s in tested))
                 for u, c, n, w in rows]
         invariants = [_over_flags(text, flags) for text in control.invariants]
-    return StateTable.from_rows(name=machine.name, kind="mealy", inputs=machine.inputs,
-                                outputs=outputs, rows=rows, reset=control.reset,
-                                states=[names[n] for n in names if n in seen],
-                                invariants=invariants)
+    table = StateTable.from_rows(name=machine.name, kind="mealy", inputs=machine.inputs,
+                                 outputs=outputs, rows=rows, reset=control.reset,
+                                 states=[names[n] for n in names if n in seen],
+                                 invariants=invariants)
+    return table, tuple(first.values())
 
 
 _STATE_TEST = re.compile(r"\bstate\s*(==|!=)\s*([A-Za-z_][A-Za-z0-9_]*)")

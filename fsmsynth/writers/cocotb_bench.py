@@ -9,6 +9,8 @@ Run as a script it builds the Verilog design with Icarus and runs both tests.
 
 from __future__ import annotations
 
+from collections.abc import Collection
+
 from fsmsynth.base.names import ports_of
 from fsmsynth.model.clocking import DEFAULT_CLOCKING, Clocking
 from fsmsynth.model.table import StateTable
@@ -121,6 +123,11 @@ async def table_checks(dut):
             await Timer(HALF - 1, "ns")
         elif step[0] == "hold":
             await hold(dut)
+        elif step[0] == "walk":  # the way to a tested state, without checks
+            for _cycle in range(step[2]):
+                drive(dut, step[1])
+                await Timer(HALF - 1, "ns")
+                await clock(dut)
         elif step[0] == "check":
             checks += sum(1 for c in step[3] if c != "-")
             errors += [(test, step[2], *m) for m in mismatches(dut, step[3])]
@@ -188,9 +195,10 @@ if __name__ == "__main__":
 
 
 def write_cocotb_bench(table: StateTable, *, period: int = 10,
-                       clocking: Clocking = DEFAULT_CLOCKING) -> str:
-    """The cocotb test module's text (see the module docstring); ``clocking`` as for
-    :func:`fsmsynth.writers.testbench.write_testbench`."""
+                       clocking: Clocking = DEFAULT_CLOCKING,
+                       tested: Collection[str] | None = None) -> str:
+    """The cocotb test module's text (see the module docstring); ``clocking`` and
+    ``tested`` as for :func:`fsmsynth.writers.testbench.write_testbench`."""
     rows: dict[str, list[tuple[str, str | None, str | None]]] = {}
     for state, cube, nxt, out in table.rows:
         rows.setdefault(state, []).append((cube, nxt, out))
@@ -199,7 +207,8 @@ def write_cocotb_bench(table: StateTable, *, period: int = 10,
         in_ports=[(p, w or 1) for p, w in ports_of(table.inputs)],
         out_ports=[(p, w or 1) for p, w in ports_of(table.outputs)], kind=table.kind,
         reset=table.reset, rows=rows, state_outputs=dict(table.state_outputs),
-        steps=bench_steps(table, hold=clocking.enable is not None), half=max(2, period // 2),
+        steps=bench_steps(table, hold=clocking.enable is not None, tested=tested),
+        half=max(2, period // 2),
         clock=clocking.clock, reset_port=clocking.reset, enable=clocking.enable,
         asserted=int(clocking.asserted), released=int(clocking.released),
         sync=clocking.reset_style == "sync")

@@ -11,7 +11,7 @@ table specifies on the way; after the transition it checks the next state's outp
 from __future__ import annotations
 
 from collections import deque
-from collections.abc import Callable
+from collections.abc import Callable, Collection
 from dataclasses import dataclass
 
 from fsmsynth.base.names import ports_of
@@ -44,16 +44,22 @@ Step = tuple[object, ...]
 output cube)`` or ``("clock",)``."""
 
 
-def bench_steps(table: StateTable, *, hold: bool = False) -> list[Step]:
+def bench_steps(table: StateTable, *, hold: bool = False,
+                tested: Collection[str] | None = None) -> list[Step]:
     """What a bench does, in order, independent of the HDL it is written in.  With ``hold``
     (a design with a clock enable) each test's last transition is first clocked with the
-    enable at 0 (``("hold",)``), and the outputs checked again: the state must not move."""
+    enable at 0 (``("hold",)``), and the outputs checked again: the state must not move.
+    ``tested`` limits the tests to the rows of those states (a timed design's unrolled
+    table: one state per control state and readings); the way to each is then walked
+    without checks, runs of one input word as one ``("walk", word, cycles)`` step, since
+    the tests of the states on the way check them.  By default every reachable state's
+    rows are tested, with checks on every cycle."""
     steps: list[Step] = []
     n_in = len(table.inputs)
     paths = _paths(table)
     test = 0
     for state in table.states:
-        if state not in paths:
+        if state not in paths or (tested is not None and state not in tested):
             continue
         for _s, cube, _n, _o in table.rows_of(state):
             for word in _fills(cube):
@@ -61,7 +67,16 @@ def bench_steps(table: StateTable, *, hold: bool = False) -> list[Step]:
                 steps.append(("comment", f"test {test}: state {state}, inputs {word}"))
                 steps.append(("reset",))
                 current: str | None = table.reset
+                if tested is not None:  # walk to the state; its own tests checked the way
+                    for step in paths[state]:
+                        current = table.lookup(current, step)[0]  # type: ignore[arg-type]
+                        if steps[-1][:2] == ("walk", step):
+                            steps[-1] = ("walk", step, int(steps[-1][2]) + 1)  # type: ignore[call-overload]
+                        else:
+                            steps.append(("walk", step, 1))
                 for cycle, step in enumerate(paths[state] + [word], start=1):
+                    if tested is not None and cycle <= len(paths[state]):
+                        continue
                     assert current is not None
                     nxt, outs = table.lookup(current, step)
                     steps += [("drive", step), ("check", test, cycle, outs)]
@@ -91,12 +106,15 @@ class BenchSyntax:
     clock: Callable[[], list[str]]
     hold: Callable[[], list[str]] = lambda: []
     """A clock edge with the enable at 0."""
+    repeat: Callable[[int, list[str]], list[str]] = lambda n, body: body * n
+    """``body`` (statements) ``n`` times: a loop."""
 
 
-def bench_body(table: StateTable, syntax: BenchSyntax, *, hold: bool = False) -> list[str]:
+def bench_body(table: StateTable, syntax: BenchSyntax, *, hold: bool = False,
+               tested: Collection[str] | None = None) -> list[str]:
     """The lines of every step of :func:`bench_steps`, written in ``syntax``."""
     lines: list[str] = []
-    for step in bench_steps(table, hold=hold):
+    for step in bench_steps(table, hold=hold, tested=tested):
         what = step[0]
         if what == "comment":
             lines += syntax.comment(str(step[1]))
@@ -106,6 +124,9 @@ def bench_body(table: StateTable, syntax: BenchSyntax, *, hold: bool = False) ->
             lines += syntax.drive(str(step[1]))
         elif what == "hold":
             lines += syntax.hold()
+        elif what == "walk":
+            body = syntax.drive(str(step[1])) + syntax.clock()
+            lines += body if step[2] == 1 else syntax.repeat(int(step[2]), body)  # type: ignore[call-overload]
         elif what == "check":
             _k, test, cycle, cube = step
             for name, want in zip(table.outputs, str(cube)):
@@ -117,7 +138,8 @@ def bench_body(table: StateTable, syntax: BenchSyntax, *, hold: bool = False) ->
 
 
 def write_testbench(table: StateTable, *, period: int = 10,
-                    clocking: Clocking = DEFAULT_CLOCKING, vcd: str | None = None) -> str:
+                    clocking: Clocking = DEFAULT_CLOCKING, vcd: str | None = None,
+                    tested: Collection[str] | None = None) -> str:
     """Verilog testbench text for a module with the table's name and ports.
 
     Parameters
@@ -134,6 +156,8 @@ def write_testbench(table: StateTable, *, period: int = 10,
         A file name: the bench dumps every signal of the bench and the design into it as a
         value change dump (IEEE 1364-2005, section 18), the design's ``state_name`` (its
         present state's name, as text) among them.
+    tested:
+        The states whose rows are tested (:func:`bench_steps`); by default all.
     """
     half = max(2, period // 2)
     n_in = len(table.inputs)
@@ -179,7 +203,10 @@ def write_testbench(table: StateTable, *, period: int = 10,
                             if n_in else []) + [f"        #{half - 1};"],
         check=check,
         clock=lambda: [f"        {edge}"],
-        hold=lambda: [f"        {en} = 1'b0; {edge} {en} = 1'b1;"]), hold=en is not None)
+        hold=lambda: [f"        {en} = 1'b0; {edge} {en} = 1'b1;"],
+        repeat=lambda n, body: [f"        repeat ({n}) begin", *(f"    {x}" for x in body),
+                                "        end"]), hold=en is not None,
+        tested=tested)
     lines += [
         "        if (errors != 0) $fatal(1, \"FAIL: %0d of %0d checks failed\", errors, checks);",
         "        $display(\"PASS: %0d checks\", checks);",

@@ -12,7 +12,7 @@ why a name is not usable, and :func:`write_vhdl` refuses such names, naming them
 
 from __future__ import annotations
 
-from collections.abc import Sequence
+from collections.abc import Collection, Sequence
 
 from fsmsynth.base.errors import TableError
 from fsmsynth.base.names import RESERVED_PREFIX, ports_of, split_bit
@@ -216,9 +216,11 @@ def write_vhdl(netlist: Netlist, *, header: str = "", checks: Sequence[str] = ()
 
 
 def write_vhdl_testbench(table: StateTable, *, period: int = 10,
-                         clocking: Clocking = DEFAULT_CLOCKING) -> str:
+                         clocking: Clocking = DEFAULT_CLOCKING,
+                         tested: Collection[str] | None = None) -> str:
     """A self-checking VHDL testbench from the table alone, the same checks as the Verilog
-    one (:func:`fsmsynth.writers.testbench.write_testbench`, ``clocking`` as there):
+    one (:func:`fsmsynth.writers.testbench.write_testbench`, ``clocking`` and ``tested`` as
+    there):
     ``report ... severity failure`` on a mismatch, ``PASS: n checks`` otherwise."""
     c = clocking
     check_vhdl_names(table.name, table.inputs, table.outputs, c)
@@ -263,8 +265,10 @@ def write_vhdl_testbench(table: StateTable, *, period: int = 10,
         reset=lambda: [reset],
         drive=drive, check=check,
         clock=lambda: [f"    {edge}"],
-        hold=lambda: [f"    {c.enable} <= '0'; {edge} {c.enable} <= '1';"]),
-        hold=c.enable is not None)
+        hold=lambda: [f"    {c.enable} <= '0'; {edge} {c.enable} <= '1';"],
+        repeat=lambda n, body: [f"    for cycle in 1 to {n} loop", *(f"  {x}" for x in body),
+                                "    end loop;"]),
+        hold=c.enable is not None, tested=tested)
     lines += ["    if errors /= 0 then", "      report \"FAIL: \" & integer'image(errors) & "
               "\" of \" & integer'image(checks) & \" checks failed\" severity failure;",
               "    end if;", "    report \"PASS: \" & integer'image(checks) & \" checks\";",
