@@ -105,6 +105,11 @@ async def table_checks(dut):
             await Timer(HALF - 1, "ns")
         elif step[0] == "hold":
             await hold(dut)
+        elif step[0] == "walk":  # the way to a tested state, without checks
+            for _cycle in range(step[2]):
+                drive(dut, step[1])
+                await Timer(HALF - 1, "ns")
+                await clock(dut)
         elif step[0] == "check":
             checks += sum(1 for c in step[3] if c != "-")
             errors += [(test, step[2], *m) for m in mismatches(dut, step[3])]
