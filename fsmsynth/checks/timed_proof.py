@@ -88,24 +88,19 @@ def verify_timed(netlist: Netlist, machine: TimedMachine, *, safe: bool = False
     """Prove ``netlist`` realizes ``machine`` from reset (see the module docstring).
 
     ``safe``: the blocks must also take every value above their range to 0 in one clock."""
-    widths = machine.widths
-    k = netlist.width - sum(widths)
-    readings = [r.signal for r in machine.readings]
-    actions = [a for a, _b, _x in machine.action_signals()]
     try:
-        control = cut(netlist, inputs=[*machine.inputs, *readings], bits=range(k),
-                      outputs=[*machine.outputs, *actions])
-        result = verify(control, machine.control)
-        offset = k
-        for block, width in zip(machine.blocks, widths):
-            own = [a for a, b, _x in machine.action_signals() if b == block.name]
+        result = verify(control_part(netlist, machine), machine.control)
+        offset = netlist.width - sum(machine.widths)
+        for block in machine.blocks:
+            own = [(s, a) for s, b, a in machine.action_signals() if b == block.name]
             reads = [r for r in machine.readings if r.block == block.name]
-            part = cut(netlist, inputs=own, bits=range(offset, offset + width),
+            part = cut(netlist, inputs=[s for s, _a in own],
+                       bits=range(offset, offset + block.width),
                        outputs=[r.signal for r in reads])
             problem = _block_problem(part, machine, block.name, own, safe)
             if problem:
                 return _exact(netlist, machine, problem)
-            offset += width
+            offset += block.width
     except NetlistError as exc:
         return _exact(netlist, machine, exc.args[0])
     if not result:
@@ -115,13 +110,23 @@ def verify_timed(netlist: Netlist, machine: TimedMachine, *, safe: bool = False
                         "arithmetic (BDDs)")
 
 
-def _block_problem(part: Netlist, machine: TimedMachine, name: str, actions: Sequence[str],
-                   safe: bool) -> str | None:
+def control_part(netlist: Netlist, machine: TimedMachine) -> Netlist:
+    """The part of ``netlist`` that is ``machine``'s control machine: its flip-flops come
+    first, the readings are its inputs beside the spec's, the actions its outputs."""
+    return cut(netlist, inputs=[*machine.inputs, *(r.signal for r in machine.readings)],
+               bits=range(netlist.width - sum(machine.widths)),
+               outputs=[*machine.outputs, *(s for s, _b, _a in machine.action_signals())])
+
+
+def _block_problem(part: Netlist, machine: TimedMachine, name: str,
+                   actions: Sequence[tuple[str, str]], safe: bool) -> str | None:
+    """What is wrong with block ``name``'s part (``actions``: its ``(signal, action)``
+    inputs), or ``None``."""
     block = machine.block(name)
     var = bdd.variables(block.width + len(actions), name="fs_v")
     q = var[:block.width]
-    act = {a.rsplit("_", 1)[1]: var[block.width + i] for i, a in enumerate(actions)}
-    values: dict[str, Any] = {a: var[block.width + i] for i, a in enumerate(actions)}
+    act = {a: var[block.width + i] for i, (_s, a) in enumerate(actions)}
+    values: dict[str, Any] = {s: var[block.width + i] for i, (s, _a) in enumerate(actions)}
     values.update({ff.q: q[ff.bit] for ff in part.flip_flops})
     env = evaluate(part, values, bdd.ONE)
     want, care = block_values(block, q, act)
@@ -197,10 +202,7 @@ def _check_timed_invariants(machine: TimedMachine, netlist: Netlist | None = Non
     except TableError:
         if netlist is None:
             return check_invariants(control)
-        k = netlist.width - sum(machine.widths)
-        part = cut(netlist, inputs=[*machine.inputs, *readings], bits=range(k),
-                   outputs=[*machine.outputs, *actions])
-        return check_invariants(control, part)
+        return check_invariants(control, control_part(netlist, machine))
     if netlist is None or len(table.outputs) > len(machine.outputs) + len(readings) + len(
             actions):
         # Invariants that test states are proven on the unrolled table (the netlist has no

@@ -40,6 +40,7 @@ from fsmsynth.flows.project import (
 )
 from fsmsynth.formats.delays_toml import read_delays
 from fsmsynth.map.targets import target_named
+from fsmsynth.model.timers import Timer
 
 
 def design_report(design: Design) -> dict[str, object]:
@@ -78,7 +79,7 @@ def design_report(design: Design) -> dict[str, object]:
         "timers": None if design.timed is None else {
             "built": design.timed.choice,
             "blocks": [{"name": b.block.name, "kind": type(b.block).__name__.lower(),
-                        "size": b.block.top + (1 if b.block.actions == ("start",) else 0),
+                        "size": b.block.cycles if isinstance(b.block, Timer) else b.block.limit,
                         "width": b.block.width, "storage": b.storage.name,
                         "cost": b.cost.total} for b in design.timed.blocks],
             "costs": dict(design.timed.alternatives)},

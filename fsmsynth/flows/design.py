@@ -31,7 +31,7 @@ from fsmsynth.stages.equations import Equation
 from fsmsynth.stages.netlist import Netlist
 from fsmsynth.stages.reduce.tabulation import StateMinimization
 from fsmsynth.stages.registered import delayed_machine
-from fsmsynth.stages.unroll import representatives, unroll
+from fsmsynth.stages.unroll import unroll_for_bench
 from fsmsynth.writers.json_netlist import write_json_netlist
 from fsmsynth.writers.rtl_machine import RtlMachine, rtl_machine
 from fsmsynth.writers.rtl_verilog import assertion_lines as verilog_assertions
@@ -226,18 +226,24 @@ class Design:
         or for registered Mealy outputs its delayed machine (outputs one clock later)."""
         if self.registered is not None and self.table.kind == "mealy":
             return delayed_machine(self.table, keep_dont_cares=True)
-        if self.timed is not None and self.timed.choice == "counters":
-            return unroll(self.timed.machine)  # the whole design's ports and behaviour
+        if self._bench is not None:
+            return self._bench[0]  # the unrolled timed machine: the whole design's ports
         return self.table
 
-    @cached_property
+    @property
     def bench_states(self) -> tuple[str, ...] | None:
         """The states of :attr:`reference` a bench tests: all (``None``), or for timers and
         counters built as blocks one state of the unrolled table per control state and
-        readings (:func:`fsmsynth.stages.unroll.representatives`); the proof covers the other
+        readings (:func:`fsmsynth.stages.unroll.unroll_for_bench`); the proof covers the other
         counter values."""
+        return None if self._bench is None else self._bench[1]
+
+    @cached_property
+    def _bench(self) -> tuple[StateTable, tuple[str, ...]] | None:
+        """For timers and counters built as blocks, the unrolled table and the states a bench
+        tests, from one unrolling."""
         if self.timed is not None and self.timed.choice == "counters":
-            return representatives(self.timed.machine)
+            return unroll_for_bench(self.timed.machine)
         return None
 
     @property

@@ -226,12 +226,12 @@ class TimedMachine:
         rules = [words.rewrite(text, f"invariant {i}")
                  for i, text in enumerate(invariants or (), start=1)]
         readings = tuple(words.readings.values())
+        user_in, user_out = _names(inputs), _names(outputs)
         used = sorted({s for e in [*lowered, *every] if isinstance(e[-1], Mapping)
-                       for s in e[-1] if s not in _user_outputs(outputs)})
+                       for s in e[-1] if s not in user_out})
         actions = [action_signal(b, a) for b in words.blocks
                    for a in (("start",) if b in words.timers else ("count", "clear"))
                    if action_signal(b, a) in used]
-        user_in, user_out = _names(inputs), _names(outputs)
         check_free([r.signal for r in readings] + actions, [*user_in, *user_out])
         control = StateTable.from_transitions(
             name=name, reset=reset, kind="mealy",
@@ -251,10 +251,6 @@ class TimedMachine:
 
 def _names(ports: Sequence[str] | Mapping[str, int]) -> list[str]:
     return [str(p) for p in ports]
-
-
-def _user_outputs(ports: Sequence[str] | Mapping[str, int]) -> set[str]:
-    return set(_names(ports))
 
 
 def _extended(ports: Sequence[str] | Mapping[str, int], extra: Sequence[str]

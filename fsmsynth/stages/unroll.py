@@ -41,12 +41,13 @@ def unroll(machine: TimedMachine, *, limit: int = UNROLL_LIMIT, signals: bool = 
     return _unrolled(machine, limit, signals)[0]
 
 
-def representatives(machine: TimedMachine, *, limit: int = UNROLL_LIMIT) -> tuple[str, ...]:
-    """The unrolled states a bench tests (the first reached, so the nearest to reset, of
-    each pair of a control state and the readings there); the others differ from one of
-    these only in counter values, which the proof covers
+def unroll_for_bench(machine: TimedMachine, *, limit: int = UNROLL_LIMIT
+                     ) -> tuple[StateTable, tuple[str, ...]]:
+    """:func:`unroll`'s table, and the states a bench tests (the first reached, so the
+    nearest to reset, of each pair of a control state and the readings there); the others
+    differ from one of these only in counter values, which the proof covers
     (:mod:`fsmsynth.checks.timed_proof`)."""
-    return _unrolled(machine, limit, False)[1]
+    return _unrolled(machine, limit, False)
 
 
 def _unrolled(machine: TimedMachine, limit: int, signals: bool

@@ -6,8 +6,11 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
+from fsmsynth.language.timer_words import action_signal
 from fsmsynth.model.clocking import Clocking
 from fsmsynth.model.timers import TimedMachine, Timer
+from fsmsynth.writers.verilog import register_block
+from fsmsynth.writers.vhdl import register_process
 
 
 @dataclass(frozen=True, slots=True)
@@ -45,13 +48,8 @@ def rtl_blocks(machine: TimedMachine) -> tuple[RtlBlock, ...]:
     return tuple(found)
 
 
-def _signal(block: RtlBlock, action: str) -> str:
-    return f"{block.name}_{action}"
-
-
 def verilog_lines(blocks: tuple[RtlBlock, ...], edge: str, c: Clocking) -> list[str]:
     """Declarations, one register block per timer or counter, and the readings."""
-    from fsmsynth.writers.verilog import register_block  # the same conventions as the state
     lines: list[str] = []
     for b in blocks:
         w, reg = b.width, b.register
@@ -61,14 +59,14 @@ def verilog_lines(blocks: tuple[RtlBlock, ...], edge: str, c: Clocking) -> list[
                                               "sets 0."),
                   f"reg [{w - 1}:0] {reg};"]
         if b.timer:
-            load = ([f"if ({_signal(b, 'start')}) {reg} <= {w}'d{b.top};", "else "]
+            load = ([f"if ({action_signal(b.name, 'start')}) {reg} <= {w}'d{b.top};", "else "]
                     if "start" in b.actions else [""])
             load[-1] += f"if ({reg} != {w}'d0) {reg} <= {reg} - {w}'d1;"
         else:
-            load = ([f"if ({_signal(b, 'clear')}) {reg} <= {w}'d0;", "else "]
+            load = ([f"if ({action_signal(b.name, 'clear')}) {reg} <= {w}'d0;", "else "]
                     if "clear" in b.actions else [""])
             if "count" in b.actions:
-                load[-1] += (f"if ({_signal(b, 'count')} && {reg} != {w}'d{b.top}) "
+                load[-1] += (f"if ({action_signal(b.name, 'count')} && {reg} != {w}'d{b.top}) "
                              f"{reg} <= {reg} + {w}'d1;")
             else:
                 load[-1] += f"{reg} <= {reg};"
@@ -88,20 +86,19 @@ def vhdl_declarations(blocks: tuple[RtlBlock, ...]) -> list[str]:
 
 def vhdl_lines(blocks: tuple[RtlBlock, ...], edge: str, c: Clocking) -> list[str]:
     """One clocked process per timer or counter, and the readings."""
-    from fsmsynth.writers.vhdl import register_process
     lines: list[str] = []
     for b in blocks:
         reg = b.register
         if b.timer:
-            load = ([f"if {_signal(b, 'start')} = '1' then", f"  {reg} <= {b.top};",
+            load = ([f"if {action_signal(b.name, 'start')} = '1' then", f"  {reg} <= {b.top};",
                      f"elsif {reg} /= 0 then"] if "start" in b.actions
                     else [f"if {reg} /= 0 then"])
             load += [f"  {reg} <= {reg} - 1;", "end if;"]
         else:
-            load = ([f"if {_signal(b, 'clear')} = '1' then", f"  {reg} <= 0;"]
+            load = ([f"if {action_signal(b.name, 'clear')} = '1' then", f"  {reg} <= 0;"]
                     if "clear" in b.actions else [])
             if "count" in b.actions:
-                load += [f"{'els' if load else ''}if {_signal(b, 'count')} = '1' and "
+                load += [f"{'els' if load else ''}if {action_signal(b.name, 'count')} = '1' and "
                          f"{reg} /= {b.top} then", f"  {reg} <= {reg} + 1;"]
             load += ["end if;"] if load else ["null;"]
         lines += ["", f"-- {b.describe}"]
