@@ -21,7 +21,7 @@ from typing import Any
 
 from pyeda.boolalg.bdd import BDDONE, BDDZERO, bddvar
 
-from fsmsynth.logic.cube import Cube
+from fsmsynth.logic.cube import CUBE_ORDER, Cube
 
 ONE: Any = BDDONE
 ZERO: Any = BDDZERO
@@ -50,7 +50,7 @@ def cubes_of(function: Any, var: Sequence[Any]) -> list[Cube]:
             care |= 1 << index[v]
             value |= bit << index[v]
         cubes.append(Cube(care=care, value=value))
-    return sorted(cubes)
+    return sorted(cubes, key=CUBE_ORDER)
 
 
 def point_of(function: Any, var: Sequence[Any]) -> int:

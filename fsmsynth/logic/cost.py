@@ -24,7 +24,7 @@ from dataclasses import dataclass, field
 
 from fsmsynth.base.errors import OptionError
 from fsmsynth.base.frozen import FrozenMap
-from fsmsynth.logic.cube import Cube
+from fsmsynth.logic.cube import CUBE_ORDER, Cube
 
 GATE_KINDS = ("not", "and", "or")
 
@@ -161,7 +161,7 @@ class LogicShape:
 def normal_terms(terms: Iterable[Cube]) -> tuple[Cube, ...]:
     """A function's terms as the netlist builds them: sorted, no repeats; ``()`` is 0 and a
     lone universe cube is 1."""
-    unique = sorted(set(terms))
+    unique = sorted(set(terms), key=CUBE_ORDER)
     if any(t.care == 0 for t in unique):
         return (Cube.universe(),)
     return tuple(unique)

@@ -11,6 +11,7 @@ from __future__ import annotations
 from collections.abc import Iterable, Iterator
 from dataclasses import dataclass
 from functools import lru_cache
+from operator import attrgetter
 
 
 @dataclass(frozen=True, slots=True, order=True)
@@ -87,6 +88,11 @@ class Cube:
     def representative(self) -> int:
         """One point of the cube: free variables set to 0."""
         return self.value
+
+
+CUBE_ORDER = attrgetter("care", "value")
+"""Sort key giving cubes their own order (care mask, then value) without calling
+``Cube.__lt__``: sorting with it is several times faster in the minimizers' inner loops."""
 
 
 @lru_cache(maxsize=65536)
@@ -186,7 +192,7 @@ def complement_cubes(points: Iterable[int], n: int) -> list[Cube]:
         split([p for p in group if p & bit], var - 1, care | bit, value | bit)
 
     split(sorted(set(points)), n - 1, 0, 0)
-    return sorted(result)
+    return sorted(result, key=CUBE_ORDER)
 
 
 def bits_of(mask: int) -> Iterator[int]:

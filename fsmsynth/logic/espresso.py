@@ -12,7 +12,7 @@ from collections.abc import Sequence
 
 from pyeda.boolalg.espresso import FTYPE, RTYPE, espresso, set_config
 
-from fsmsynth.logic.cube import Cube
+from fsmsynth.logic.cube import CUBE_ORDER, Cube
 from fsmsynth.logic.engine_lock import LOCK
 
 # pyeda's positional cube notation: 1 = complemented literal, 2 = positive, 3 = absent.
@@ -150,4 +150,4 @@ def espresso_cover(n_vars: int, on_sets: Sequence[Sequence[Cube]],
         for f in range(m):
             if outvec[f] == _OUT_ON:
                 terms[f].append(cube)
-    return [tuple(sorted(t)) for t in terms]
+    return [tuple(sorted(t, key=CUBE_ORDER)) for t in terms]

@@ -21,7 +21,7 @@ from collections.abc import Iterable, Iterator, Sequence
 from dataclasses import dataclass, replace
 
 from fsmsynth.logic.covering import minimum_cover, petrick
-from fsmsynth.logic.cube import Cube
+from fsmsynth.logic.cube import CUBE_ORDER, Cube
 from fsmsynth.logic.espresso import espresso_cover
 
 
@@ -182,7 +182,7 @@ def _irredundant(points: set[int], candidates: list[Cube]) -> tuple[Cube, ...]:
         rest = [c for c in kept if c != t]
         if all(any(c.contains_point(m) for c in rest) for m in points if t.contains_point(m)):
             kept = rest
-    return tuple(sorted(kept))
+    return tuple(sorted(kept, key=CUBE_ORDER))
 
 
 def exact_cover(n: int, on_sets: Sequence[set[int]], dc_sets: Sequence[set[int]],

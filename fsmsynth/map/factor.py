@@ -19,12 +19,15 @@ multiple-level logic optimization system", *IEEE Trans. CAD* 6(6), 1987 (good fa
 
 from __future__ import annotations
 
+import functools
 from collections.abc import Iterable, Sequence
 
-from fsmsynth.logic.cube import Cube
+from fsmsynth.logic.cube import CUBE_ORDER, Cube
 from fsmsynth.map.expr import Expr
 
 Sop = tuple[Cube, ...]
+FACTORED_REMEMBERED = 20_000
+"""Factored forms :func:`factor` remembers (the least recently used go first)."""
 KERNEL_LIMIT = 200
 """Kernels examined per factoring step; a large function keeps the best of the first ones."""
 
@@ -43,8 +46,8 @@ def _divides(d: Cube, c: Cube) -> bool:
 
 
 def _quotient_by_cube(sop: Sop, d: Cube) -> Sop:
-    return tuple(sorted(Cube(care=c.care & ~d.care, value=c.value & ~d.care)
-                        for c in sop if _divides(d, c)))
+    return tuple(sorted((Cube(care=c.care & ~d.care, value=c.value & ~d.care)
+                         for c in sop if _divides(d, c)), key=CUBE_ORDER))
 
 
 def _common_cube(sop: Sop) -> Cube:
@@ -64,7 +67,7 @@ def divide(f: Sop, d: Sop) -> tuple[Sop, Sop]:
         if not quotient:
             return (), f
     assert quotient is not None
-    q = tuple(sorted(quotient))
+    q = tuple(sorted(quotient, key=CUBE_ORDER))
     used = {Cube(care=a.care | b.care, value=a.value | b.value) for a in q for b in d}
     r = tuple(c for c in f if c not in used)
     return q, r
@@ -97,8 +100,8 @@ def kernels(f: Sop, limit: int = KERNEL_LIMIT) -> list[Sop]:
 
     if len(f) >= 2:
         if not _common_cube(f).care:
-            found[tuple(sorted(f))] = None
-        walk(tuple(sorted(f)), 0)
+            found[tuple(sorted(f, key=CUBE_ORDER))] = None
+        walk(tuple(sorted(f, key=CUBE_ORDER)), 0)
     return [k for k in found if len(k) >= 2]
 
 
@@ -156,11 +159,17 @@ def factor(terms: Iterable[Cube]) -> Expr:
     >>> factor(f).text(["a", "b", "c"])
     'a (b + c)'
     """
-    sop = tuple(sorted(set(terms)))
-    factored = _factor(sop)
-    plain = _plain(sop) if sop else Expr.const(False)
+    return _factored(tuple(sorted(set(terms), key=CUBE_ORDER)))
+
+
+@functools.lru_cache(maxsize=FACTORED_REMEMBERED)
+def _factored(sop: Sop) -> Expr:
+    """:func:`factor` of a sorted cover, remembered: the encoding searches map thousands of
+    candidates whose functions often repeat, and a factored form is immutable."""
     if any(c.care == 0 for c in sop):
         return Expr.const(True)
+    factored = _factor(sop)
+    plain = _plain(sop) if sop else Expr.const(False)
     return factored if factored.literals <= plain.literals else plain
 
 

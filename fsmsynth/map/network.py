@@ -22,7 +22,7 @@ from collections.abc import Sequence
 from dataclasses import dataclass
 
 from fsmsynth.logic.cost import normal_terms
-from fsmsynth.logic.cube import Cube
+from fsmsynth.logic.cube import CUBE_ORDER, Cube
 from fsmsynth.map.factor import divide
 
 EXTRACTIONS = 64
@@ -82,8 +82,8 @@ def restructured(names: Sequence[str], covers: Sequence[Sequence[Cube]], n_base:
                     rest = Cube(care=cube.care & ~common.care, value=cube.value & ~common.care)
                     terms[k] = Cube(care=rest.care | 1 << var, value=rest.value | 1 << var)
     first = len(extracted)
-    nodes = list(extracted) + [(name, tuple(sorted(set(t)))) for name, t in zip(names,
-                                                                             functions)]
+    nodes = list(extracted) + [(name, tuple(sorted(set(t), key=CUBE_ORDER)))
+                               for name, t in zip(names, functions)]
     # Resubstitution: rewrite a function over an earlier one that divides it.
     for i in range(first, len(nodes)):
         name, f = nodes[i]
@@ -96,7 +96,7 @@ def restructured(names: Sequence[str], covers: Sequence[Sequence[Cube]], n_base:
                 continue
             var = n_base + j
             rewritten = tuple(sorted({Cube(care=c.care | 1 << var, value=c.value | 1 << var)
-                                      for c in q} | set(r)))
+                                      for c in q} | set(r), key=CUBE_ORDER))
             if sum(c.literal_count for c in rewritten) < sum(c.literal_count for c in f):
                 f = rewritten
         nodes[i] = (name, f)

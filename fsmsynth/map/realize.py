@@ -133,22 +133,8 @@ def map_design(name: str, inputs: Sequence[str], outputs: Sequence[str], cover: 
     if target.kind == "pterms":
         return _on_array(name, inputs, outputs, cover, storages, reset_code, target, bits,
                          edge)
-    n = len(cover.variables)
-    options = [plain_network(cover.names, cover.terms, n),
-               restructured(cover.names, cover.terms, n)]
-    best: tuple[tuple[float, ...], Network, tuple[list[Gate], dict[str, str],
-                                                   dict[str, int], float]] | None = None
-    for network in options:
-        graph = _graph(network, cover, storages, outputs, bits, convert=True)
-        covered = _cover(graph, cover, len(storages), target, goal)
-        depth = _depth(Netlist(name=name, inputs=tuple(inputs), outputs=(),
-                               gates=tuple(covered[0]), flip_flops=()), covered[1].values())
-        key = ((round(covered[3], 9), depth) if goal == "area"
-               else (depth, round(covered[3], 9)))
-        if best is None or key < best[0]:
-            best = (key, network, covered)
-    assert best is not None
-    _key, network, (gates, nets, counts, area) = best
+    network, (gates, nets, counts, area) = _cheapest(name, inputs, outputs, cover, storages,
+                                                     target, goal, bits)
     storage_report = _storage_report(network, cover, storages, outputs, bits, target, goal,
                                      area)
     flip_flops = _flip_flops(storages, bits, nets, reset_code, edge)
@@ -161,6 +147,43 @@ def map_design(name: str, inputs: Sequence[str], outputs: Sequence[str], cover: 
     return MappedDesign(target.name, netlist, FrozenMap(dict(sorted(counts.items()))), area,
                     ff_area, _depth(netlist), FrozenMap(storage_report),
                     cell_delays=FrozenMap(dict(sorted(delays.items()))))
+
+
+def mapped_area(inputs: Sequence[str], outputs: Sequence[str], cover: Cover,
+                storages: Sequence[Storage], target: Target, goal: str = "area") -> float:
+    """The area :func:`map_design` gives (logic and flip-flops), without building the
+    netlist or the storage report: what the encoding searches score a candidate by."""
+    bits = _bits(storages, target)
+    ff_area = sum(target.flip_flops[built.name] for _b, built, _c in bits)
+    if target.kind == "pterms":
+        return map_design("area", inputs, outputs, cover, storages, 0, target, goal).area
+    return _cheapest("area", inputs, outputs, cover, storages, target, goal, bits)[1][3] + ff_area
+
+
+def _cheapest(name: str, inputs: Sequence[str], outputs: Sequence[str], cover: Cover,
+              storages: Sequence[Storage], target: Target, goal: str,
+              bits: Sequence[tuple[int, Storage, bool]]) -> tuple[
+                  Network, tuple[list[Gate], dict[str, str], dict[str, int], float]]:
+    """The plain and the restructured network mapped, and the cheaper kept: the network and
+    its gates, root nets, cell counts and logic area."""
+    n = len(cover.variables)
+    options = [plain_network(cover.names, cover.terms, n),
+               restructured(cover.names, cover.terms, n)]
+    best: tuple[tuple[float, ...], Network, tuple[list[Gate], dict[str, str],
+                                                   dict[str, int], float]] | None = None
+    for network in options:
+        graph = _graph(network, cover, storages, outputs, bits, convert=True)
+        covered = _cover(graph, cover, len(storages), target, goal)
+        area = round(covered[3], 9)
+        if goal == "area" and best is not None and area > best[0][0]:
+            continue  # dearer: its depth cannot make it the choice
+        depth = _depth(Netlist(name=name, inputs=tuple(inputs), outputs=(),
+                               gates=tuple(covered[0]), flip_flops=()), covered[1].values())
+        key = (area, depth) if goal == "area" else (depth, area)
+        if best is None or key < best[0]:
+            best = (key, network, covered)
+    assert best is not None
+    return best[1], best[2]
 
 
 def _cover(graph: SubjectGraph, cover: Cover, width: int, target: Target, goal: str

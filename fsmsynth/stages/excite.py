@@ -11,7 +11,7 @@ from __future__ import annotations
 from collections.abc import Sequence
 
 from fsmsynth.base.errors import OptionError
-from fsmsynth.logic.cube import Cube
+from fsmsynth.logic.cube import CUBE_ORDER, Cube
 from fsmsynth.logic.functions import Function, LogicFunctions
 from fsmsynth.model.storage import Storage
 from fsmsynth.model.table import StateTable
@@ -96,7 +96,7 @@ def excite(table: StateTable, encoding: Encoding,
     variables = tuple(f"Q{b}" for b in range(k)) + table.inputs
     return LogicFunctions(
         variables=variables,
-        functions=tuple(Function(name=n, on=tuple(sorted(set(on[n]))),
-                                 off=tuple(sorted(set(off[n])))) for n in on),
+        functions=tuple(Function(name=n, on=tuple(sorted(set(on[n]), key=CUBE_ORDER)),
+                                 off=tuple(sorted(set(off[n]), key=CUBE_ORDER))) for n in on),
         exclusive=exclusive,
     )

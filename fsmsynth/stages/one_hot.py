@@ -19,7 +19,7 @@ state; from memory).
 from __future__ import annotations
 
 from fsmsynth.logic.cover import Cover
-from fsmsynth.logic.cube import Cube
+from fsmsynth.logic.cube import CUBE_ORDER, Cube
 from fsmsynth.logic.espresso import espresso_cover
 from fsmsynth.model.table import StateTable
 from fsmsynth.stages.encode import Encoding
@@ -71,4 +71,4 @@ def one_hot_cover(table: StateTable, encoding: Encoding, variables: tuple[str, .
                 assert term is not None
                 terms[signal].add(term)
     return Cover(variables=variables, names=tuple(names),
-                 terms=tuple(tuple(sorted(terms[name])) for name in names))
+                 terms=tuple(tuple(sorted(terms[name], key=CUBE_ORDER)) for name in names))

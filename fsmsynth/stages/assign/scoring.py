@@ -24,7 +24,7 @@ from fsmsynth.base.frozen import FrozenMap
 from fsmsynth.logic.cost import CostWeights, cost_of, logic_shape
 from fsmsynth.logic.cover import minimize_logic
 from fsmsynth.logic.cube import Cube
-from fsmsynth.map.realize import map_design
+from fsmsynth.map.realize import mapped_area
 from fsmsynth.map.targets import Target
 from fsmsynth.model.storage import Storage
 from fsmsynth.model.table import StateTable
@@ -72,10 +72,9 @@ class Scorer:
             penalty = self.unit_distance * sum(
                 1 for a, b in transitions(self.table) if bin(code[a] ^ code[b]).count("1") > 1)
         if self.target is not None and self.target.kind != "two-level":
-            reset = codes[self.table.states.index(self.table.reset)]
-            mapped = map_design(self.table.name, self.table.inputs, self.table.outputs, cover,
-                                kinds, reset, self.target, self.map_for)
-            return round(mapped.area + penalty, 6), cost.gate_inputs
+            area = mapped_area(self.table.inputs, self.table.outputs, cover, kinds,
+                               self.target, self.map_for)
+            return round(area + penalty, 6), cost.gate_inputs
         return cost.total + penalty, cost.gate_inputs
 
 
