@@ -271,6 +271,29 @@ def test_many_inputs_read_by_different_states() -> None:
     assert all(len(m) == 2 for m in r.classes.values())
 
 
+@settings(max_examples=60, deadline=None)
+@given(state_tables(max_states=6, max_inputs=4, kind="mealy"))
+def test_a_table_nothing_merges_in_keeps_its_rows(drawn: StateTable) -> None:
+    """A table with no two compatible states is its own reduction (common practice, no
+    source): its rows are kept as written, not split into the input classes the
+    comparison used (a many-input machine would otherwise grow several times over)."""
+    # Outputs naming the state on every row make states incompatible where their rows
+    # overlap (states whose rows never overlap may still merge: those cases are skipped).
+    bits = max(1, (len(drawn.states) - 1).bit_length())
+    ident = {s: format(i, f"0{bits}b") for i, s in enumerate(drawn.states)}
+    table = StateTable.from_rows(
+        name="distinct", inputs=drawn.inputs,
+        outputs=[*drawn.outputs, *(f"id{b}" for b in range(bits))],
+        rows=[(s, c, n, (o or "-" * len(drawn.outputs)) + ident[s])
+              for s, c, n, o in drawn.rows],
+        reset=drawn.states[0], states=drawn.states)
+    r = minimize_states(table, reachable_only=False)
+    assume(len(r.table.states) == len(table.states))
+    assert all(len(m) == 1 for m in r.classes.values())
+    assert r.table.rows == table.rows
+    assert realizes(r.table, table) and realizes(table, r.table)
+
+
 @pytest.mark.parametrize("reachable_only", [True, False])
 def test_reset_state_comes_first(reachable_only: bool) -> None:
     t = mealy([("a", ("b", "0"), ("c", "0")), ("b", ("a", "1"), ("a", "1")),

@@ -306,6 +306,9 @@ def _from_cover(table: StateTable, beh: _Behaviour, cover: list[int], proven: bo
                 unreachable: tuple[str, ...]) -> StateMinimization:
     """The reduced table of a closed cover: one state per compatible."""
     groups, order, names = _cover_states(table, beh, cover)
+    if _unchanged(table, groups, order, names):
+        return _cover_minimization(table, beh, groups, order, names, table.rows, {}, proven,
+                                   unreachable, len(beh.classes), "whole table", same=True)
     rows = []
     state_outputs: dict[str, str] = {}
     n_in = len(table.inputs)
@@ -426,6 +429,9 @@ def _from_local_cover(table: StateTable, beh: _LocalBehaviour, cover: list[int],
     """:func:`_from_cover` on local partitions: a reduced state's rows are the regions of its
     members' combined behaviour, written as disjoint cubes."""
     groups, order, names = _cover_states(table, beh, cover)
+    if _unchanged(table, groups, order, names):
+        return _cover_minimization(table, beh, groups, order, names, table.rows, {}, proven,
+                                   unreachable, widest, "local", same=True)
     var = bdd.variables(len(table.inputs))
     n_in, blank = len(table.inputs), "-" * len(table.outputs)
     labels = {s: _state_labels(beh, s) for g in groups for s in g}
@@ -479,14 +485,25 @@ def _cover_states(table: StateTable, beh: _AnyBehaviour, cover: Sequence[int]) -
     return groups, order, _names(table, beh, groups, order)
 
 
+def _unchanged(table: StateTable, groups: Sequence[frozenset[int]], order: Sequence[int],
+               names: Mapping[int, str]) -> bool:
+    """Whether a closed cover keeps every state on its own, under its name and in its
+    place (the reset first): then the table is its own reduction, and its rows are kept as
+    written rather than split into the input classes the comparison used (which for a
+    machine of many inputs can be many times as many rows)."""
+    return (all(len(g) == 1 for g in groups)
+            and [names[g] for g in order] == list(table.states))
+
+
 def _cover_minimization(table: StateTable, beh: _AnyBehaviour,
                         groups: Sequence[frozenset[int]], order: Sequence[int],
                         names: Mapping[int, str], rows: Sequence[Row],
                         state_outputs: Mapping[str, str], proven: bool,
                         unreachable: tuple[str, ...], input_classes: int,
-                        input_partition: str) -> StateMinimization:
-    """The reduced table of a closed cover, from its rows, and what produced it."""
-    reduced = StateTable.from_rows(
+                        input_partition: str, same: bool = False) -> StateMinimization:
+    """The reduced table of a closed cover, from its rows, and what produced it (``table``
+    itself with ``same``)."""
+    reduced = table if same else StateTable.from_rows(
         name=table.name, kind=table.kind, inputs=table.inputs, outputs=table.outputs, rows=rows,
         reset=names[order[0]], states=[names[g] for g in order],
         state_outputs=state_outputs if table.kind == "moore" else None)
