@@ -58,3 +58,40 @@ def test_fewer_literals_than_binary_on_controllers() -> None:
         binary = synthesize(table, "d", "binary")
         assert hot.verification and binary.verification
         assert hot.cost.literals < binary.cost.literals
+
+
+def test_one_hot_codes_found_by_a_search_get_the_structural_logic() -> None:
+    """Anneal with the width left open scores one-hot too; on a controller of 24 states it
+    is far cheaper than any 5-bit code, so the search returns it, and the design is built
+    from the transitions (one state bit per product) and proven like any other."""
+    table = controller(24, 8, seed=5)
+    searched = synthesize(table, "d", "anneal", budget=20)
+    hot = synthesize(table, "d", "one-hot")
+    rule = synthesize(table, "d", "adjacency")
+    assert searched.assignment is not None and searched.verification
+    assert searched.encoding.width == 24 and searched.cost.total == hot.cost.total
+    assert searched.cost.total < rule.cost.total
+    assert searched.assignment.cost == searched.cost.total
+    k = searched.encoding.width
+    assert all(bin(t.care & ((1 << k) - 1)).count("1") == 1
+               for terms in searched.cover.terms for t in terms if t.care)
+    # Given a width, the search stays at it.
+    narrow = synthesize(table, "d", "anneal", budget=20, width=5)
+    assert narrow.encoding.width == 5
+
+
+def test_a_one_hot_result_is_held_against_plain_codes_in_the_fewest_bits() -> None:
+    from fsmsynth.logic.cost import DEFAULT_WEIGHTS
+    from fsmsynth.model.storage import D
+    from fsmsynth.stages.assign import Scorer, SearchResult
+    from fsmsynth.stages.assign.scoring import plain_codes_if_cheaper
+    table = controller(20, 6, seed=2)
+    score = Scorer(table=table, storages=lambda w: (D,) * w, unused="dont-care",
+                   weights=DEFAULT_WEIGHTS, logic="heuristic")
+    one_hot = tuple(1 << i for i in range(20))
+    dear = SearchResult(codes=one_hot, width=20, cost=10.0 ** 9, evaluated=1, proven=False,
+                        interrupted=False)
+    kept = plain_codes_if_cheaper(dear, score, 20)
+    assert kept.width == 5 and kept.codes in (tuple(range(20)),
+                                              tuple(i ^ (i >> 1) for i in range(20)))
+    assert kept.cost == score(kept.codes, 5)[0]

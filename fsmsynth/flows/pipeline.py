@@ -41,7 +41,7 @@ from fsmsynth.stages.encode import Encoding, encode
 from fsmsynth.stages.equations import Equation
 from fsmsynth.stages.excite import excite
 from fsmsynth.stages.netlist import EDGES, build_netlist
-from fsmsynth.stages.one_hot import ONE_HOT_STRUCTURE_ABOVE, one_hot_cover
+from fsmsynth.stages.one_hot import built_from_structure, one_hot_cover
 from fsmsynth.stages.reduce import minimize_states
 from fsmsynth.stages.reduce.tabulation import StateMinimization
 from fsmsynth.stages.registered import delayed_machine, registered_codes
@@ -360,9 +360,7 @@ def _build(table: StateTable, reduction: StateMinimization | None, work: StateTa
            logic: str, smooth: tuple[str, ...] = (), output_offset: int | None = None
            ) -> Design:
     functions = excite(work, codes, storages, unused=unused)
-    if (codes.method == "one-hot" and unused == "dont-care" and output_offset is None
-            and len(work.states) > ONE_HOT_STRUCTURE_ABOVE
-            and all(s.name == "d" for s in storages)):
+    if output_offset is None and built_from_structure(work, codes, storages, unused):
         cover = one_hot_cover(work, codes, functions.variables)  # from the transitions
     else:
         cover = minimize_logic(functions, weights, logic)

@@ -75,7 +75,7 @@ def searched_codes(table: StateTable, method: str, storage: StorageChoice, unuse
         result = exhaustive_search(score, n, k, jobs, time_limit=time_limit, force=force)
     else:
         result = anneal_search(score, table, k, seed, 400 if budget is None else budget,
-                               jobs=jobs, time_limit=time_limit)
+                               jobs=jobs, time_limit=time_limit, one_hot=width is None)
     result = plain_codes_if_cheaper(result, score, n)
     result = replace(result, seconds=round(time.perf_counter() - started, 3),
                      scored_on=target.name)

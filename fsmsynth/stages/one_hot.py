@@ -18,15 +18,30 @@ state; from memory).
 
 from __future__ import annotations
 
+from collections.abc import Sequence
+
 from fsmsynth.logic.cover import Cover
 from fsmsynth.logic.cube import CUBE_ORDER, Cube
 from fsmsynth.logic.espresso import espresso_cover
+from fsmsynth.model.storage import Storage
 from fsmsynth.model.table import StateTable
 from fsmsynth.stages.encode import Encoding
 
 ONE_HOT_STRUCTURE_ABOVE = 16
 """One-hot machines of more states than this get their D logic from the structure (below,
 the general minimizer, which may use more of the don't cares, is fast enough)."""
+
+
+def built_from_structure(table: StateTable, encoding: Encoding,
+                         storages: Sequence[Storage], unused: str) -> bool:
+    """Whether a design's logic comes from :func:`one_hot_cover`: D flip-flops, unused codes
+    don't cares, more than :data:`ONE_HOT_STRUCTURE_ABOVE` states, and every code a single
+    bit of its own (however the codes were chosen: asked for, given, or found by a
+    search)."""
+    n = len(table.states)
+    return (n > ONE_HOT_STRUCTURE_ABOVE and unused == "dont-care" and encoding.width == n
+            and all(s.name == "d" for s in storages)
+            and {encoding.codes[s] for s in table.states} == {1 << b for b in range(n)})
 
 
 def one_hot_cover(table: StateTable, encoding: Encoding, variables: tuple[str, ...]) -> Cover:

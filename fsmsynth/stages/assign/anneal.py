@@ -23,15 +23,36 @@ from fsmsynth.stages.encode import encode
 
 
 def anneal_search(score: Scorer, table: StateTable, width: int, seed: int,
-                  budget: int, *, jobs: int = 1,
-                  time_limit: float | None = None) -> SearchResult:
+                  budget: int, *, jobs: int = 1, time_limit: float | None = None,
+                  one_hot: bool = False) -> SearchResult:
     """Simulated annealing over assignments, deterministic for a given seed and budget.
 
     Starts from the cheaper of binary and the ``adjacency`` result (whose scoring ``jobs``
-    shares); ``time_limit`` covers both phases and stops with the best found so far.
+    shares); ``time_limit`` covers both phases and stops with the best found so
+    far.  With ``one_hot`` (the caller left the code width open), one-hot codes are scored
+    first and kept where they cost less than the best assignment at ``width``: on
+    controllers of many states, one-hot logic built from the transitions usually costs
+    far less than any minimum-width code, flip-flops included.
     """
     deadline = None if time_limit is None else time.monotonic() + time_limit
     rng = random.Random(seed)
+    n = len(table.states)
+    wide: tuple[tuple[float, int], tuple[int, ...]] | None = None
+    if one_hot and n > width:
+        one_hot_codes = tuple(1 << i for i in range(n))
+        wide = (score(one_hot_codes, n), one_hot_codes)
+        if deadline is not None:
+            time_limit = max(0.001, deadline - time.monotonic())
+    result = _anneal(score, table, width, rng, budget, jobs, time_limit, deadline)
+    if wide is None or not wide[0][0] < result.cost:
+        return replace(result, evaluated=result.evaluated + (wide is not None))
+    return replace(result, codes=wide[1], width=n, cost=wide[0][0],
+                   evaluated=result.evaluated + 1)
+
+
+def _anneal(score: Scorer, table: StateTable, width: int, rng: random.Random, budget: int,
+            jobs: int, time_limit: float | None, deadline: float | None) -> SearchResult:
+    """The search at ``width`` bits (see :func:`anneal_search`)."""
     n = len(table.states)
     cache: dict[tuple[int, ...], tuple[float, int]] = {}
 
@@ -51,14 +72,21 @@ def anneal_search(score: Scorer, table: StateTable, width: int, seed: int,
         return replace(rule, interrupted=True)
     best = current
     progress = _Progress("anneal", budget, deadline)
-    temperature = max(1.0, value(current)[0] * 0.05)
+    start_temperature = temperature = max(1.0, value(current)[0] * 0.05)
     cooling = (0.01) ** (1.0 / max(1, budget))
+    started = time.monotonic()
     interrupted = timed_out = False
     try:
         for step in range(budget):
-            if deadline is not None and time.monotonic() > deadline:
+            now = time.monotonic()
+            if deadline is not None and now > deadline:
                 timed_out = True
                 break
+            if deadline is not None and deadline > started:
+                # Cool by whichever runs out first, the steps or the time: a time limit
+                # with a large budget still ends cold, taking only improvements.
+                used = (now - started) / (deadline - started)
+                temperature = min(temperature, start_temperature * 0.01 ** used)
             trial = list(current)
             unused = sorted(set(range(1 << width)) - set(trial))
             if unused and rng.random() < 0.5:

@@ -30,6 +30,7 @@ from fsmsynth.model.storage import Storage
 from fsmsynth.model.table import StateTable
 from fsmsynth.stages.encode import Encoding
 from fsmsynth.stages.excite import excite
+from fsmsynth.stages.one_hot import built_from_structure, one_hot_cover
 
 SEARCHES = ("adjacency", "exhaustive", "anneal")
 
@@ -60,8 +61,11 @@ class Scorer:
         encoding = Encoding(method="given", width=width,
                             codes=FrozenMap(dict(zip(self.table.states, codes))))
         kinds = self.storages(width)
-        cover = minimize_logic(excite(self.table, encoding, kinds, unused=self.unused),
-                               self.weights, self.logic, memo=self.memo)
+        functions = excite(self.table, encoding, kinds, unused=self.unused)
+        if built_from_structure(self.table, encoding, kinds, self.unused):
+            cover = one_hot_cover(self.table, encoding, functions.variables)
+        else:
+            cover = minimize_logic(functions, self.weights, self.logic, memo=self.memo)
         counts: dict[str, int] = {}
         for s in kinds:
             counts[s.name] = counts.get(s.name, 0) + 1
@@ -294,14 +298,18 @@ def plain_codes_if_cheaper(result: SearchResult, score: Callable[[Sequence[int],
     """``result``, or the binary or Gray codes at its width where they score lower: a
     search is never dearer than the plain codes it could have started from (a heuristic
     search can end in a local minimum above them).  A proven search needs no check.  The
-    two extra scorings count in ``evaluated``."""
+    two extra scorings count in ``evaluated``.  A one-hot result is compared with the plain
+    codes in the fewest bits (at its own width they would be absurdly wide)."""
     if result.proven or result.width == 0 or n > 1 << result.width:
         return result
+    width = result.width
+    if n > 2 and width == n and sorted(result.codes) == [1 << b for b in range(n)]:
+        width = min_width(n)
     best = result
     for codes in (tuple(range(n)), tuple(i ^ (i >> 1) for i in range(n))):
-        cost = score(codes, result.width)[0]
+        cost = score(codes, width)[0]
         if cost < best.cost:
-            best = SearchResult(codes=codes, width=result.width, cost=cost,
+            best = SearchResult(codes=codes, width=width, cost=cost,
                                 evaluated=best.evaluated, proven=False,
                                 interrupted=result.interrupted, timed_out=result.timed_out)
     return SearchResult(codes=best.codes, width=best.width, cost=best.cost,

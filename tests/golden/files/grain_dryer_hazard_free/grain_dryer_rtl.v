@@ -41,7 +41,7 @@ module grain_dryer (
         auger = 2'd0;
         alarm = 1'b0;
         case (state)
-            S_IDLE: begin  // idle
+            S_IDLE: begin  // idle (spec line 21)
                 if (start & ~door_open) begin
                     state_next = S_PURGE;
                     fan = 1'b1;
@@ -51,7 +51,7 @@ module grain_dryer (
                     alarm = 1'b1;
                 end
             end
-            S_PURGE: begin  // purge
+            S_PURGE: begin  // purge (spec line 22)
                 if (stop & ~door_open) begin
                     state_next = S_IDLE;
                 end
@@ -68,7 +68,7 @@ module grain_dryer (
                     alarm = 1'b1;
                 end
             end
-            S_DRYING: begin  // drying
+            S_DRYING: begin  // drying (spec line 25)
                 if ((~stop & ~door_open & flame_ok & ~moisture[2] & moisture[1]) | (~stop & ~door_open & flame_ok & (moisture == 3'd4))) begin
                     state_next = S_DRYING;
                     burner = 1'b1;
@@ -95,7 +95,7 @@ module grain_dryer (
                     alarm = 1'b1;
                 end
             end
-            S_COOLING: begin  // cooling
+            S_COOLING: begin  // cooling (spec line 29)
                 if (~door_open & grain_cool) begin
                     state_next = S_IDLE;
                 end
@@ -109,7 +109,7 @@ module grain_dryer (
                     alarm = 1'b1;
                 end
             end
-            S_LOCKOUT: begin  // lockout
+            S_LOCKOUT: begin  // lockout (spec line 31)
                 if (stop & ~door_open) begin
                     state_next = S_IDLE;
                 end

@@ -49,7 +49,7 @@ begin
     auger <= "00";
     alarm <= '0';
     case state is
-      when S_IDLE =>  -- idle
+      when S_IDLE =>  -- idle (spec line 21)
         if start = '1' and door_open = '0' then
           state_next <= S_PURGE;
           fan <= '1';
@@ -57,7 +57,7 @@ begin
           state_next <= S_LOCKOUT;
           alarm <= '1';
         end if;
-      when S_PURGE =>  -- purge
+      when S_PURGE =>  -- purge (spec line 22)
         if stop = '1' and door_open = '0' then
           state_next <= S_IDLE;
         elsif door_open = '0' and purge_done = '0' then
@@ -70,7 +70,7 @@ begin
           state_next <= S_LOCKOUT;
           alarm <= '1';
         end if;
-      when S_DRYING =>  -- drying
+      when S_DRYING =>  -- drying (spec line 25)
         if (stop = '0' and door_open = '0' and flame_ok = '1' and moisture(2) = '0' and moisture(1) = '1') or (stop = '0' and door_open = '0' and flame_ok = '1' and moisture = "100") then
           state_next <= S_DRYING;
           burner <= '1';
@@ -92,7 +92,7 @@ begin
           state_next <= S_LOCKOUT;
           alarm <= '1';
         end if;
-      when S_COOLING =>  -- cooling
+      when S_COOLING =>  -- cooling (spec line 29)
         if door_open = '0' and grain_cool = '1' then
           state_next <= S_IDLE;
         elsif door_open = '0' then
@@ -103,7 +103,7 @@ begin
           state_next <= S_LOCKOUT;
           alarm <= '1';
         end if;
-      when S_LOCKOUT =>  -- lockout
+      when S_LOCKOUT =>  -- lockout (spec line 31)
         if stop = '1' and door_open = '0' then
           state_next <= S_IDLE;
         else
