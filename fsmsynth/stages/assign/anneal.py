@@ -16,10 +16,12 @@ import random
 import time
 from dataclasses import replace
 
+from fsmsynth.base.frozen import FrozenMap
 from fsmsynth.model.table import StateTable
 from fsmsynth.stages.assign.adjacency import adjacency_search
 from fsmsynth.stages.assign.scoring import Scorer, SearchResult, _Progress
-from fsmsynth.stages.encode import encode
+from fsmsynth.stages.encode import Encoding, encode
+from fsmsynth.stages.one_hot import ONE_HOT_STRUCTURE_ABOVE, built_from_structure
 
 
 def anneal_search(score: Scorer, table: StateTable, width: int, seed: int,
@@ -32,14 +34,16 @@ def anneal_search(score: Scorer, table: StateTable, width: int, seed: int,
     far.  With ``one_hot`` (the caller left the code width open), one-hot codes are scored
     first and kept where they cost less than the best assignment at ``width``: on
     controllers of many states, one-hot logic built from the transitions usually costs
-    far less than any minimum-width code, flip-flops included.
+    far less than any minimum-width code, flip-flops included.  Past
+    :data:`~fsmsynth.stages.one_hot.ONE_HOT_STRUCTURE_ABOVE` states this needs D storage
+    and don't-care unused codes (:func:`_one_hot_is_quick`).
     """
     deadline = None if time_limit is None else time.monotonic() + time_limit
     rng = random.Random(seed)
     n = len(table.states)
     wide: tuple[tuple[float, int], tuple[int, ...]] | None = None
-    if one_hot and n > width:
-        one_hot_codes = tuple(1 << i for i in range(n))
+    one_hot_codes = tuple(1 << i for i in range(n))
+    if one_hot and n > width and _one_hot_is_quick(score, table, one_hot_codes):
         wide = (score(one_hot_codes, n), one_hot_codes)
         if deadline is not None:
             time_limit = max(0.001, deadline - time.monotonic())
@@ -48,6 +52,18 @@ def anneal_search(score: Scorer, table: StateTable, width: int, seed: int,
         return replace(result, evaluated=result.evaluated + (wide is not None))
     return replace(result, codes=wide[1], width=n, cost=wide[0][0],
                    evaluated=result.evaluated + 1)
+
+
+def _one_hot_is_quick(score: Scorer, table: StateTable, codes: tuple[int, ...]) -> bool:
+    """Whether scoring one-hot takes about as long as one step: its logic comes from the
+    transitions (D flip-flops, unused codes free), or the machine is small enough for the
+    minimizer.  Otherwise (T, JK or SR storage, or safe unused codes, on a big machine) it
+    would minimize as many functions as states over states plus inputs variables, which
+    takes minutes at a hundred states, so anneal leaves it out."""
+    n = len(table.states)
+    encoding = Encoding(method="given", width=n, codes=FrozenMap(dict(zip(table.states, codes))))
+    return n <= ONE_HOT_STRUCTURE_ABOVE or built_from_structure(table, encoding,
+                                                                score.storages(n), score.unused)
 
 
 def _anneal(score: Scorer, table: StateTable, width: int, rng: random.Random, budget: int,
