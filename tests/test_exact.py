@@ -266,3 +266,34 @@ def test_lagrangian_bound_and_reduced_costs_are_valid(rows: list[set[int]], weig
                 assert cost >= bound - 1e-9
                 for j in subset:
                     assert cost >= bound + max(reduced.get(j, weights[j]), 0) - 1e-9
+
+
+@settings(max_examples=200, deadline=None)
+@given(st.lists(st.lists(st.lists(st.text("01-", min_size=4, max_size=4), min_size=1,
+                                  max_size=5), min_size=2, max_size=3),
+                min_size=1, max_size=5),
+       st.lists(st.tuples(st.integers(0, 4), st.integers(0, 2)), max_size=12),
+       st.sampled_from([(1.0, 0.0), (1.0, 2.5), (0.5, 1.0)]))
+def test_incremental_weight_equals_the_whole_count(
+        raw: list[list[list[str]]], swaps: list[tuple[int, int]],
+        weights: tuple[float, float]) -> None:
+    """The greedy cover choice weighs each trial by swapping one function's cover in a
+    running count; after any sequence of swaps it must give what counting the whole design
+    again gives (shared products, shared OR gates, inverters, literals, terms)."""
+    from fsmsynth.logic.cost import CostWeights
+    from fsmsynth.logic.cover import _logic_weight, _Weigher
+    from fsmsynth.logic.cube import Cube
+    w = CostWeights(gate={"not": weights[1], "and": weights[1], "or": 0.0},
+                    gate_input=weights[0])
+    options = [[tuple(sorted({Cube.from_string(c) for c in cover})) for cover in f]
+               for f in raw]
+    current = [f[0] for f in options]
+    weigher = _Weigher(current, w)
+    assert weigher.weight() == _logic_weight(current, w)
+    for f, o in swaps:
+        if f >= len(options):
+            continue
+        new = options[f][o % len(options[f])]
+        weigher.swap(current[f], new)
+        current[f] = new
+        assert weigher.weight() == _logic_weight(current, w)

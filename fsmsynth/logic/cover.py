@@ -100,12 +100,15 @@ def _logic_weight(terms: Sequence[Sequence[Cube]], weights: CostWeights) -> tupl
 
 def _improve(start: list[tuple[Cube, ...]], options: Sequence[Sequence[tuple[Cube, ...]]],
              weights: CostWeights) -> list[tuple[Cube, ...]]:
-    """Greedy descent: swap one function's cover for another option while that lowers cost."""
+    """Greedy descent: swap one function's cover for another option while that lowers cost
+    (each trial weighed incrementally, :class:`_Weigher`, to the same figure
+    :func:`_logic_weight` gives)."""
     current = list(start)
     varying = [f for f, choices in enumerate(options) if len(set(choices)) > 1]
     if not varying:
         return current
-    best = _logic_weight(current, weights)
+    weigher = _Weigher(current, weights)
+    best = weigher.weight()
     improved = True
     while improved:
         improved = False
@@ -113,11 +116,86 @@ def _improve(start: list[tuple[Cube, ...]], options: Sequence[Sequence[tuple[Cub
             for choice in options[f]:
                 if choice == current[f]:
                     continue
-                trial = current[:f] + [choice] + current[f + 1:]
-                w = _logic_weight(trial, weights)
+                weigher.swap(current[f], choice)
+                w = weigher.weight()
                 if w < best:
-                    current, best, improved = trial, w, True
+                    current[f], best, improved = choice, w, True
+                else:
+                    weigher.swap(choice, current[f])
     return current
+
+
+class _Weigher:
+    """:func:`_logic_weight` of a list of covers kept up to date as one cover is swapped for
+    another: products, OR gates and complemented variables are counted with multiplicity,
+    so a swap costs the size of the two covers, not of the whole design."""
+
+    def __init__(self, terms: Sequence[Sequence[Cube]], weights: CostWeights) -> None:
+        self.weights = weights
+        self.products: dict[tuple[int, int], int] = {}
+        self.ors: dict[tuple[tuple[int, int], ...], int] = {}
+        self.inverted: dict[int, int] = {}
+        self.and_gates = self.and_inputs = self.or_inputs = self.literals = self.count = 0
+        self._parts: dict[int, tuple[tuple[tuple[int, int], ...], tuple[
+            tuple[tuple[int, int], int, tuple[int, ...]], ...]]] = {}
+        for f in terms:
+            self._add(f, 1)
+
+    def swap(self, old: Sequence[Cube], new: Sequence[Cube]) -> None:
+        """Replace one function's cover ``old`` by ``new``."""
+        self._add(old, -1)
+        self._add(new, 1)
+
+    def _add(self, f: Sequence[Cube], sign: int) -> None:
+        self.count += sign * len(f)
+        if len(f) == 1 and f[0].care == 0:
+            return
+        # The covers are the same few option tuples again and again: their products,
+        # literal counts and complemented bits are worked out once (keyed by identity; the
+        # caller keeps every option alive while it weighs).
+        parts = self._parts.get(id(f))
+        if parts is None:
+            keys = tuple((t.care, t.value) for t in f)
+            parts = self._parts[id(f)] = (keys, tuple(
+                (key, key[0].bit_count(), tuple(_bits_of(key[0] & ~key[1]))) for key in keys))
+        keys, products_of = parts
+        products = self.products
+        inverted = self.inverted
+        for key, lits, bits in products_of:
+            self.literals += sign * lits
+            before = products.get(key, 0)
+            products[key] = before + sign
+            if before == (0 if sign > 0 else 1):  # first use added, or last use removed
+                if lits >= 2:
+                    self.and_gates += sign
+                    self.and_inputs += sign * lits
+                for low in bits:
+                    inverted[low] = inverted.get(low, 0) + sign
+        if len(f) >= 2:
+            before = self.ors.get(keys, 0)
+            self.ors[keys] = before + sign
+            if before == (0 if sign > 0 else 1):
+                self.or_inputs += sign * len(f)
+
+    def weight(self) -> tuple[float, int, int]:
+        """Gate cost, literals and terms, as :func:`_logic_weight` counts them."""
+        nots = sum(1 for c in self.inverted.values() if c > 0)
+        ors = sum(1 for c in self.ors.values() if c > 0)
+        gate = self.weights.gate
+        total = (gate.get("not", 0.0) * nots + gate.get("and", 0.0) * self.and_gates
+                 + gate.get("or", 0.0) * ors
+                 + self.weights.gate_input * (nots + self.and_inputs + self.or_inputs))
+        return total, self.literals, self.count
+
+
+def _bits_of(mask: int) -> list[int]:
+    """The single-bit masks of ``mask``, lowest first."""
+    found = []
+    while mask:
+        low = mask & -mask
+        found.append(low)
+        mask ^= low
+    return found
 
 
 class _Engine:
