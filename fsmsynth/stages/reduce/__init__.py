@@ -30,12 +30,8 @@ from fsmsynth.logic.engine_lock import exclusive
 from fsmsynth.model.regions import completely_specified, state_regions
 from fsmsynth.model.table import StateTable
 from fsmsynth.stages.reduce.complete import _from_partition, _refine, _refine_local
-from fsmsynth.stages.reduce.incomplete import (
-    _closed_cover,
-    _from_cover,
-    _from_local_cover,
-    _LocalBehaviour,
-)
+from fsmsynth.stages.reduce.incomplete import _closed_cover, _LocalBehaviour
+from fsmsynth.stages.reduce.reduced_table import _from_cover, _from_local_cover
 from fsmsynth.stages.reduce.tabulation import (
     LOCAL_ABOVE,
     StateMinimization,
