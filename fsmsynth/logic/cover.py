@@ -15,7 +15,7 @@ from dataclasses import dataclass
 from fsmsynth.base.choices import LOGIC_METHODS
 from fsmsynth.base.errors import OptionError
 from fsmsynth.logic.cost import DEFAULT_WEIGHTS, CostWeights, normal_terms
-from fsmsynth.logic.cube import Cube
+from fsmsynth.logic.cube import Cube, bits_of
 from fsmsynth.logic.espresso import espresso_cover
 from fsmsynth.logic.exact import exact_cover, points_of
 from fsmsynth.logic.functions import Function, LogicFunctions
@@ -157,7 +157,7 @@ class _Weigher:
         if parts is None:
             keys = tuple((t.care, t.value) for t in f)
             parts = self._parts[id(f)] = (keys, tuple(
-                (key, key[0].bit_count(), tuple(_bits_of(key[0] & ~key[1]))) for key in keys))
+                (key, key[0].bit_count(), tuple(bits_of(key[0] & ~key[1]))) for key in keys))
         keys, products_of = parts
         products = self.products
         inverted = self.inverted
@@ -186,16 +186,6 @@ class _Weigher:
                  + gate.get("or", 0.0) * ors
                  + self.weights.gate_input * (nots + self.and_inputs + self.or_inputs))
         return total, self.literals, self.count
-
-
-def _bits_of(mask: int) -> list[int]:
-    """The single-bit masks of ``mask``, lowest first."""
-    found = []
-    while mask:
-        low = mask & -mask
-        found.append(low)
-        mask ^= low
-    return found
 
 
 class _Engine:

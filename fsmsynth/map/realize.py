@@ -153,10 +153,10 @@ def mapped_area(inputs: Sequence[str], outputs: Sequence[str], cover: Cover,
                 storages: Sequence[Storage], target: Target, goal: str = "area") -> float:
     """The area :func:`map_design` gives (logic and flip-flops), without building the
     netlist or the storage report: what the encoding searches score a candidate by."""
-    bits = _bits(storages, target)
-    ff_area = sum(target.flip_flops[built.name] for _b, built, _c in bits)
     if target.kind == "pterms":
         return map_design("area", inputs, outputs, cover, storages, 0, target, goal).area
+    bits = _bits(storages, target)
+    ff_area = sum(target.flip_flops[built.name] for _b, built, _c in bits)
     return _cheapest("area", inputs, outputs, cover, storages, target, goal, bits)[1][3] + ff_area
 
 

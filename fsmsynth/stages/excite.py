@@ -17,13 +17,18 @@ from fsmsynth.model.storage import Storage
 from fsmsynth.model.table import StateTable
 from fsmsynth.stages.encode import Encoding
 
-__all__ = ["Function", "LogicFunctions", "excite", "pin_signal"]
+__all__ = ["Function", "LogicFunctions", "excite", "logic_variables", "pin_signal"]
 
 
 def pin_signal(storage: Storage, pin: str, bit: int) -> str:
     """Equation name of a flip-flop pin: pin name then state bit (``J2``)."""
     assert pin in storage.pins
     return f"{pin}{bit}"
+
+
+def logic_variables(table: StateTable, width: int) -> tuple[str, ...]:
+    """The variables of a design's functions: ``Q0 .. Q<width-1>``, then the inputs."""
+    return tuple(f"Q{b}" for b in range(width)) + table.inputs
 
 
 def excite(table: StateTable, encoding: Encoding,
@@ -93,7 +98,7 @@ def excite(table: StateTable, encoding: Encoding,
 
     exclusive = tuple((pin_signal(s, a, b), pin_signal(s, c, b))
                       for b, s in enumerate(per_bit) for a, c in s.exclusive)
-    variables = tuple(f"Q{b}" for b in range(k)) + table.inputs
+    variables = logic_variables(table, k)
     return LogicFunctions(
         variables=variables,
         functions=tuple(Function(name=n, on=tuple(sorted(set(on[n]), key=CUBE_ORDER)),

@@ -29,7 +29,7 @@ from fsmsynth.map.targets import Target
 from fsmsynth.model.storage import Storage
 from fsmsynth.model.table import StateTable
 from fsmsynth.stages.encode import Encoding
-from fsmsynth.stages.excite import excite
+from fsmsynth.stages.excite import excite, logic_variables
 from fsmsynth.stages.one_hot import built_from_structure, one_hot_cover
 
 SEARCHES = ("adjacency", "exhaustive", "anneal")
@@ -61,11 +61,11 @@ class Scorer:
         encoding = Encoding(method="given", width=width,
                             codes=FrozenMap(dict(zip(self.table.states, codes))))
         kinds = self.storages(width)
-        functions = excite(self.table, encoding, kinds, unused=self.unused)
         if built_from_structure(self.table, encoding, kinds, self.unused):
-            cover = one_hot_cover(self.table, encoding, functions.variables)
+            cover = one_hot_cover(self.table, encoding, logic_variables(self.table, width))
         else:
-            cover = minimize_logic(functions, self.weights, self.logic, memo=self.memo)
+            cover = minimize_logic(excite(self.table, encoding, kinds, unused=self.unused),
+                                   self.weights, self.logic, memo=self.memo)
         counts: dict[str, int] = {}
         for s in kinds:
             counts[s.name] = counts.get(s.name, 0) + 1
